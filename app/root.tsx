@@ -1,0 +1,84 @@
+import {
+  isRouteErrorResponse,
+  Links,
+  Meta,
+  Outlet,
+  Scripts,
+  ScrollRestoration,
+  useRouteLoaderData,
+} from "react-router";
+import type { Route } from "./+types/root";
+import { AppShell } from "~/components/app-shell";
+import { ServiceWorkerUpdate } from "~/components/sw-update";
+import { nightFromCookieHeader } from "~/lib/night-mode";
+import "./app.css";
+
+export const links: Route.LinksFunction = () => [
+  { rel: "manifest", href: "/manifest.webmanifest" },
+  { rel: "icon", href: "/favicon.ico", sizes: "32x32" },
+  { rel: "icon", href: "/icons/icon.svg", type: "image/svg+xml" },
+  { rel: "apple-touch-icon", href: "/icons/icon-180.png" },
+];
+
+export function loader({ request }: Route.LoaderArgs) {
+  return { night: nightFromCookieHeader(request.headers.get("cookie")) };
+}
+
+export function Layout({ children }: { children: React.ReactNode }) {
+  const root = useRouteLoaderData<typeof loader>("root");
+  const night = root?.night ?? false;
+  return (
+    <html lang="en" className={night ? "night" : undefined}>
+      <head>
+        <meta charSet="utf-8" />
+        <meta name="viewport" content="width=device-width, initial-scale=1, viewport-fit=cover" />
+        <meta name="theme-color" content={night ? "#000000" : "#0a1030"} />
+        <meta name="description" content="Will the battery bank last till dawn? Runway, budget and wiring for life off your own bank." />
+        <Meta />
+        <Links />
+      </head>
+      <body>
+        {children}
+        <ScrollRestoration />
+        <Scripts />
+      </body>
+    </html>
+  );
+}
+
+export default function App({ loaderData }: Route.ComponentProps) {
+  return (
+    <AppShell night={loaderData.night}>
+      <Outlet />
+      <ServiceWorkerUpdate />
+    </AppShell>
+  );
+}
+
+export function ErrorBoundary({ error }: Route.ErrorBoundaryProps) {
+  let title = "Something went wrong";
+  let detail = "Tilldawn hit an unexpected problem. Your saved data is safe. Try again, or go back to the start.";
+  if (isRouteErrorResponse(error)) {
+    if (error.status === 404) {
+      title = "Page not found";
+      detail = "There is nothing at this address. It may have moved, or the rig may not be shared with you.";
+    } else {
+      title = `${error.status} ${error.statusText || "Error"}`;
+      detail = typeof error.data === "string" ? error.data : (error.data?.message ?? detail);
+    }
+  } else if (import.meta.env.DEV && error instanceof Error) {
+    detail = error.message;
+  }
+  return (
+    <main id="main" className="mx-auto flex min-h-dvh max-w-xl flex-col justify-center gap-4 p-6">
+      <p className="text-sm font-bold uppercase tracking-widest text-dawn-400">Tilldawn</p>
+      <h1 className="text-3xl font-bold">{title}</h1>
+      <p className="text-lg text-night-200">{detail}</p>
+      <p>
+        <a href="/" className="inline-flex min-h-12 items-center rounded-xl bg-dawn-500 px-5 font-bold text-night-950">
+          Back to the start
+        </a>
+      </p>
+    </main>
+  );
+}

@@ -1,0 +1,37 @@
+import type { Route } from "./+types/api.v1.projection";
+import { getEnv } from "~/env.server";
+import { apiError, issuesOf, readJson } from "~/lib/http";
+import { clientAddress, createRateLimiter } from "~/lib/rate-limit.server";
+import { projectionRequestSchema, runProjectionRequest } from "~/engine/api";
+
+const limiter = createRateLimiter({ limit: getEnv().PROJECTION_RATE_PER_MINUTE, windowMs: 60_000 });
+
+/** POST /api/v1/projection — stateless: a rig model and its state in, every engine result out. */
+export async function action({ request }: Route.ActionArgs) {
+  if (request.method !== "POST") {
+    return apiError(405, "method_not_allowed", "Use POST.", undefined, { allow: "POST" });
+  }
+  const gate = limiter.hit(clientAddress(request));
+  if (!gate.ok) {
+    return apiError(429, "rate_limited", `Too many projections; try again in ${gate.retryAfterS} s.`, undefined, {
+      "retry-after": String(gate.retryAfterS),
+    });
+  }
+  const body = await readJson(request);
+  if (!body.ok) return body.response;
+  const parsed = projectionRequestSchema.safeParse(body.body);
+  if (!parsed.success) {
+    return apiError(400, "invalid_request", "The request does not match the schema (GET /api/v1/schema).", issuesOf(parsed.error));
+  }
+  const result = runProjectionRequest(parsed.data);
+  if (!result.ok) {
+    return apiError(400, "invalid_model", "The rig model is not consistent.", result.issues);
+  }
+  return Response.json(result.value);
+}
+
+export function loader() {
+  return apiError(405, "method_not_allowed", "Use POST with a JSON body; the schema is at GET /api/v1/schema.", undefined, {
+    allow: "POST",
+  });
+}

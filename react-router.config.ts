@@ -1,0 +1,23 @@
+import type { Config } from "@react-router/dev/config";
+import { injectManifest } from "workbox-build";
+
+export default {
+  ssr: true,
+  // Lazy route discovery fetches /__manifest, which cannot work offline.
+  routeDiscovery: { mode: "initial" },
+  async buildEnd({ reactRouterConfig }) {
+    // The PWA plugin only compiles the worker; the precache list is injected here, after
+    // React Router has written every asset (its manifest-<hash>.js included).
+    const clientDir = `${reactRouterConfig.buildDirectory}/client`;
+    const { count, size, warnings } = await injectManifest({
+      swSrc: `${clientDir}/sw.js`,
+      swDest: `${clientDir}/sw.js`,
+      globDirectory: clientDir,
+      globPatterns: ["**/*.{js,css,woff2,woff,png,svg,ico,webmanifest,html}"],
+      globIgnores: ["sw.js", "**/*.map", ".vite/**"],
+      maximumFileSizeToCacheInBytes: 4 * 1024 * 1024,
+    });
+    for (const warning of warnings) console.warn(`[sw] ${warning}`);
+    console.log(`[sw] precache: ${count} files, ${(size / 1024).toFixed(0)} KiB`);
+  },
+} satisfies Config;
