@@ -13,7 +13,7 @@ export default {
       swSrc: `${clientDir}/sw.js`,
       swDest: `${clientDir}/sw.js`,
       globDirectory: clientDir,
-      globPatterns: ["**/*.{js,css,woff2,woff,png,svg,ico,webmanifest,html}"],
+      globPatterns: ["**/*.{js,css,woff2,svg,ico,webmanifest}", "icons/icon-192.png", "icons/maskable-192.png"],
       globIgnores: ["sw.js", "**/*.map", ".vite/**"],
       maximumFileSizeToCacheInBytes: 4 * 1024 * 1024,
     });
