@@ -144,6 +144,8 @@ export const inverterSchema = z.object({
   idleW: nonNeg,
   /** DC draw while switched off (remote standby). Default 0. */
   offW: nonNeg.optional(),
+  /** AC output voltage (120 or 230). Default 230. */
+  acNominalV: z.number().finite().positive().max(400).optional(),
 });
 export type Inverter = z.infer<typeof inverterSchema>;
 
