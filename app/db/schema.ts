@@ -6,6 +6,7 @@
 import { sql } from "drizzle-orm";
 import {
   bigserial,
+  boolean,
   check,
   index,
   integer,
@@ -102,4 +103,85 @@ export const modelRevisions = pgTable(
     uniqueIndex("model_revisions_branch_revision_key").on(t.branchId, t.revision),
     check("model_revisions_revision_positive", sql`${t.revision} >= 1`),
   ],
+);
+
+/* ------------------------------------------------------ accounts and sharing */
+
+export const lengthUnit = pgEnum("length_unit", ["metric", "imperial"]);
+export const cableUnit = pgEnum("cable_unit", ["awg", "mm2"]);
+export const temperatureUnit = pgEnum("temperature_unit", ["c", "f"]);
+
+/** One person's display preferences (a row per user, created on first save). */
+export const userPreferences = pgTable("user_preferences", {
+  userId: uuid("user_id")
+    .primaryKey()
+    .references(() => users.id, { onDelete: "cascade" }),
+  lengthUnit: lengthUnit("length_unit").notNull().default("metric"),
+  cableUnit: cableUnit("cable_unit").notNull().default("mm2"),
+  temperatureUnit: temperatureUnit("temperature_unit").notNull().default("c"),
+  nightDefault: boolean("night_default").notNull().default(false),
+  updatedAt: timestamp("updated_at", { withTimezone: true }).notNull().defaultNow(),
+});
+
+/**
+ * A signed-in browser. The session cookie carries the id (signed); deleting the row ends the
+ * session at once. `expiresAt` rolls forward while the session is used.
+ */
+export const sessions = pgTable(
+  "sessions",
+  {
+    id: id(),
+    userId: uuid("user_id")
+      .notNull()
+      .references(() => users.id, { onDelete: "cascade" }),
+    createdAt: createdAt(),
+    lastSeenAt: timestamp("last_seen_at", { withTimezone: true }).notNull().defaultNow(),
+    expiresAt: timestamp("expires_at", { withTimezone: true }).notNull(),
+    userAgent: text("user_agent").notNull().default(""),
+  },
+  (t) => [index("sessions_user_idx").on(t.userId), index("sessions_expires_idx").on(t.expiresAt)],
+);
+
+/**
+ * Attempts against one e-mailed sign-in code. The code itself lives encrypted in the browser's
+ * sign-in cookie; this row is keyed by a SHA-256 of that encrypted value, so the cap holds even
+ * when a browser replays an old cookie, and a used code cannot be used again.
+ */
+export const signInCodes = pgTable("sign_in_codes", {
+  codeHash: text("code_hash").primaryKey(),
+  email: text("email").notNull(),
+  attempts: integer("attempts").notNull().default(0),
+  consumedAt: timestamp("consumed_at", { withTimezone: true }),
+  createdAt: createdAt(),
+});
+
+/** Fixed-window request counters that survive a restart (e.g. sign-in codes per address). */
+export const rateLimitBuckets = pgTable("rate_limit_buckets", {
+  key: text("key").primaryKey(),
+  windowStartedAt: timestamp("window_started_at", { withTimezone: true }).notNull(),
+  count: integer("count").notNull(),
+});
+
+/**
+ * An owner's invitation to join a rig with a role. The link carries a random token; only its
+ * SHA-256 is stored. It works once, until `expiresAt`, unless revoked.
+ */
+export const rigInvites = pgTable(
+  "rig_invites",
+  {
+    id: id(),
+    rigId: uuid("rig_id")
+      .notNull()
+      .references(() => rigs.id, { onDelete: "cascade" }),
+    email: text("email").notNull(),
+    role: rigRole("role").notNull(),
+    tokenHash: text("token_hash").notNull(),
+    invitedBy: uuid("invited_by").references(() => users.id, { onDelete: "set null" }),
+    createdAt: createdAt(),
+    expiresAt: timestamp("expires_at", { withTimezone: true }).notNull(),
+    acceptedAt: timestamp("accepted_at", { withTimezone: true }),
+    acceptedBy: uuid("accepted_by").references(() => users.id, { onDelete: "set null" }),
+    revokedAt: timestamp("revoked_at", { withTimezone: true }),
+  },
+  (t) => [uniqueIndex("rig_invites_token_key").on(t.tokenHash), index("rig_invites_rig_idx").on(t.rigId)],
 );
