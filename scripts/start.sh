@@ -22,14 +22,16 @@ ensure_postgres
 
 PIDS=()
 cleanup() {
+  local code="${1:-$?}"
   trap - EXIT INT TERM
   log "Stopping"
   for pid in "${PIDS[@]}"; do kill "$pid" 2>/dev/null; done
   wait 2>/dev/null
   pg_down "$DATA_DIR/pg"
-  exit 0
+  exit "$code"
 }
-trap cleanup EXIT INT TERM
+trap cleanup EXIT
+trap 'cleanup 0' INT TERM
 
 pg_up "$DATA_DIR/pg" "$PGPORT" tilldawn
 node --import tsx scripts/migrate.ts || exit 1

@@ -18,8 +18,9 @@ ensure_node_modules
 ensure_postgres
 ensure_chromium
 
-cleanup() { pg_down "$DATA_DIR/pg"; }
-trap cleanup EXIT INT TERM
+cleanup() { local code=$?; pg_down "$DATA_DIR/pg"; exit $code; }
+trap cleanup EXIT
+trap 'exit 130' INT TERM
 
 # A fresh cluster every run: nothing carries over between runs.
 pg_down "$DATA_DIR/pg"
