@@ -8,6 +8,7 @@ import {
   bigserial,
   boolean,
   check,
+  doublePrecision,
   index,
   integer,
   jsonb,
@@ -184,4 +185,61 @@ export const rigInvites = pgTable(
     revokedAt: timestamp("revoked_at", { withTimezone: true }),
   },
   (t) => [uniqueIndex("rig_invites_token_key").on(t.tokenHash), index("rig_invites_rig_idx").on(t.rigId)],
+);
+
+/* ------------------------------------------------------ shared rig state (Now) */
+
+export const socSource = pgEnum("soc_source", ["entered", "resting_voltage", "logbook"]);
+
+/**
+ * The one shared picture of a rig right now: which loads are switched on, the chosen mode, the
+ * latest SoC entry, the place and weather used for solar. One row per rig. `version` rises by
+ * one with every accepted write (optimistic concurrency); `fieldTimes` holds, per field
+ * ("load:<id>", "mode", "soc", "place"), the server time and author of its last change, so that
+ * concurrent writes resolve last-writer-wins by server time (see DEVELOPERS.md).
+ */
+export const rigState = pgTable(
+  "rig_state",
+  {
+    rigId: uuid("rig_id")
+      .primaryKey()
+      .references(() => rigs.id, { onDelete: "cascade" }),
+    version: integer("version").notNull().default(0),
+    modeId: text("mode_id"),
+    /** loadId → on; loads absent follow the mode. */
+    switches: jsonb("switches").$type<Record<string, boolean>>().notNull().default({}),
+    socPct: doublePrecision("soc_pct"),
+    socSource: socSource("soc_source"),
+    socRestingV: doublePrecision("soc_resting_v"),
+    socTakenAt: timestamp("soc_taken_at", { withTimezone: true }),
+    /** { kind: "home" } | { kind: "device" | "typed", latDeg, lonDeg } */
+    place: jsonb("place").$type<Record<string, unknown>>().notNull().default({ kind: "home" }),
+    /** { kind: "clear" | "hazy" | "overcast" } | { kind: "percent", pct } */
+    weather: jsonb("weather").$type<Record<string, unknown>>().notNull().default({ kind: "clear" }),
+    fieldTimes: jsonb("field_times").$type<Record<string, { at: string; by: string | null }>>().notNull().default({}),
+    updatedAt: timestamp("updated_at", { withTimezone: true }).notNull().defaultNow(),
+    updatedBy: uuid("updated_by").references(() => users.id, { onDelete: "set null" }),
+  },
+  (t) => [check("rig_state_version_nonnegative", sql`${t.version} >= 0`)],
+);
+
+/** Append-only history of load switching (by hand or by applying a mode). */
+export const switchChanges = pgTable(
+  "switch_changes",
+  {
+    id: bigserial("id", { mode: "number" }).primaryKey(),
+    rigId: uuid("rig_id")
+      .notNull()
+      .references(() => rigs.id, { onDelete: "cascade" }),
+    loadId: text("load_id").notNull(),
+    on: boolean("on").notNull(),
+    /** Set when the change came from applying a mode. */
+    modeId: text("mode_id"),
+    authorId: uuid("author_id").references(() => users.id, { onDelete: "set null" }),
+    clientTime: timestamp("client_time", { withTimezone: true }),
+    serverTime: timestamp("server_time", { withTimezone: true }).notNull().defaultNow(),
+    /** False when a later write (by server time) had already changed this load: kept for the record. */
+    applied: boolean("applied").notNull().default(true),
+  },
+  (t) => [index("switch_changes_rig_time_idx").on(t.rigId, t.serverTime)],
 );
