@@ -15,6 +15,7 @@ import {
   pgEnum,
   pgTable,
   primaryKey,
+  real,
   text,
   timestamp,
   uniqueIndex,
@@ -242,4 +243,62 @@ export const switchChanges = pgTable(
     applied: boolean("applied").notNull().default(true),
   },
   (t) => [index("switch_changes_rig_time_idx").on(t.rigId, t.serverTime)],
+);
+
+/* ------------------------------------------------------------ logbook and sync */
+
+export const readingSource = pgEnum("reading_source", ["hand", "csv", "device"]);
+
+/**
+ * One logbook reading. The id is generated on the phone (idempotency: the same reading sent
+ * twice is stored once). Readings are append-only facts: an edit is an explicit edit op by the
+ * author or an owner, a delete sets `deletedAt` so sync can carry it. Current is signed:
+ * + charging, − discharging.
+ */
+export const readings = pgTable(
+  "readings",
+  {
+    id: uuid("id").primaryKey(),
+    rigId: uuid("rig_id")
+      .notNull()
+      .references(() => rigs.id, { onDelete: "cascade" }),
+    authorId: uuid("author_id").references(() => users.id, { onDelete: "set null" }),
+    takenAt: timestamp("taken_at", { withTimezone: true }).notNull(),
+    bankVoltageV: real("bank_voltage_v"),
+    currentA: real("current_a"),
+    socPct: real("soc_pct"),
+    temperatureC: real("temperature_c"),
+    solarWhToday: real("solar_wh_today"),
+    note: text("note").notNull().default(""),
+    source: readingSource("source").notNull().default("hand"),
+    createdAt: createdAt(),
+    updatedAt: timestamp("updated_at", { withTimezone: true }).notNull().defaultNow(),
+    deletedAt: timestamp("deleted_at", { withTimezone: true }),
+  },
+  (t) => [index("readings_rig_taken_idx").on(t.rigId, t.takenAt)],
+);
+
+/**
+ * The change log: every change accepted by POST /api/sync (and every reading written by the
+ * server) gets the next cursor. Phones pull "changes of this rig since my cursor". Writes for
+ * one rig are serialised by an advisory lock, so within a rig a cursor never becomes visible
+ * after a larger one. `changeId` is the phone's id of the change: sent twice, applied once.
+ * Reading changes carry no payload (the pull reads the reading's current row).
+ */
+export const syncChanges = pgTable(
+  "sync_changes",
+  {
+    cursor: bigserial("cursor", { mode: "number" }).primaryKey(),
+    changeId: uuid("change_id").notNull(),
+    rigId: uuid("rig_id")
+      .notNull()
+      .references(() => rigs.id, { onDelete: "cascade" }),
+    kind: text("kind").notNull(),
+    entityId: text("entity_id").notNull(),
+    authorId: uuid("author_id").references(() => users.id, { onDelete: "set null" }),
+    clientTime: timestamp("client_time", { withTimezone: true }),
+    serverTime: timestamp("server_time", { withTimezone: true }).notNull().defaultNow(),
+    payload: jsonb("payload"),
+  },
+  (t) => [uniqueIndex("sync_changes_change_key").on(t.changeId), index("sync_changes_rig_cursor_idx").on(t.rigId, t.cursor)],
 );
