@@ -209,6 +209,8 @@ export const rigState = pgTable(
     modeId: text("mode_id"),
     /** loadId → on; loads absent follow the mode. */
     switches: jsonb("switches").$type<Record<string, boolean>>().notNull().default({}),
+    /** switchId → position for physical switches set from the Now screen. */
+    positions: jsonb("positions").$type<Record<string, string>>().notNull().default({}),
     socPct: doublePrecision("soc_pct"),
     socSource: socSource("soc_source"),
     socRestingV: doublePrecision("soc_resting_v"),

@@ -1,0 +1,1 @@
+ALTER TABLE "rig_state" ADD COLUMN "positions" jsonb DEFAULT '{}'::jsonb NOT NULL;
