@@ -7,7 +7,9 @@ import { how, r, type How } from "./explain";
 import { clamp, interpolate } from "./units";
 
 export interface ChemistryDefaults {
-  /** Peukert exponent. Lead-acid ranges are published (see battery.test.ts); LiFePO4 from memory. */
+  /** Peukert exponent. Lead-acid: mid-range of the published typical values (secondary).
+   * LiFePO4 capacity barely depends on rate (k ≈ 1.02–1.05, memory): the default is 1 so the
+   * engine invents no loss; an owner who knows better sets peukertExponent on the bank. */
   peukertExponent: number;
   /** Charge efficiency, common practice: lead-acid 80–90 %, LiFePO4 95–99 %. */
   chargeEfficiencyPct: number;
@@ -21,7 +23,7 @@ export interface ChemistryDefaults {
 }
 
 export const CHEMISTRY_DEFAULTS: Record<Chemistry, ChemistryDefaults> = {
-  lifepo4: { peukertExponent: 1.03, chargeEfficiencyPct: 97, usableFloorSocPct: 15, cellNominalV: 3.2, restingVoltageUncertaintyVPerCell: 0.02 },
+  lifepo4: { peukertExponent: 1, chargeEfficiencyPct: 97, usableFloorSocPct: 15, cellNominalV: 3.2, restingVoltageUncertaintyVPerCell: 0.02 },
   agm: { peukertExponent: 1.1, chargeEfficiencyPct: 88, usableFloorSocPct: 50, cellNominalV: 2, restingVoltageUncertaintyVPerCell: 0.01 },
   gel: { peukertExponent: 1.15, chargeEfficiencyPct: 85, usableFloorSocPct: 50, cellNominalV: 2, restingVoltageUncertaintyVPerCell: 0.01 },
   flooded: { peukertExponent: 1.25, chargeEfficiencyPct: 85, usableFloorSocPct: 50, cellNominalV: 2, restingVoltageUncertaintyVPerCell: 0.01 },
@@ -144,9 +146,12 @@ export function peukertRuntimeH(p: PeukertInput): { runtimeH: number; effectiveC
 /**
  * Peukert-equivalent current: the rate at which a real current I drains the rated capacity.
  * I_eff = I · (I·H / C)^(k−1), consistent with t = C / I_eff = H (C/(I·H))^k.
+ * Below the rated current (C/H) no extra capacity is credited: extrapolating Peukert to a
+ * trickle would promise capacity the bank does not have (conservative choice).
  */
 export function peukertEffectiveCurrentA(currentA: number, capacityAh: number, ratedHourRateH: number, exponent: number): number {
   if (currentA <= 0 || exponent === 1 || capacityAh <= 0) return currentA;
+  if (currentA * ratedHourRateH <= capacityAh) return currentA;
   return currentA * Math.pow((currentA * ratedHourRateH) / capacityAh, exponent - 1);
 }
 

@@ -270,35 +270,41 @@ export function drawProfiles(model: RigModel, graph: CircuitGraph, budget: Budge
   for (const b of model.banks) profiles.set(b.id, new Float64Array(PROFILE_SLOTS));
   const planned = planLoads(model, plan);
   const slotH = 24 / PROFILE_SLOTS;
+  const constant = new Map<string, number>();
+  const addConstant = (bankId: string, w: number) => constant.set(bankId, (constant.get(bankId) ?? 0) + w);
   budget.loads.forEach((lb, i) => {
     const p = planned[i]!;
     const prof = lb.bankId ? profiles.get(lb.bankId) : undefined;
-    if (!prof) return;
-    const standbyAvg = lb.standbyWhPerDay / 24;
+    if (!prof || !lb.bankId) return;
     if (lb.runWhPerDay > 0 && p.windows) {
+      // Slots whose midpoint lies in a window.
       const inside = new Uint8Array(PROFILE_SLOTS);
       let count = 0;
-      for (let s = 0; s < PROFILE_SLOTS; s++) {
-        const h = (s + 0.5) * slotH;
-        if (p.windows.some((w) => windowHours(w.startH, w.endH) > 0 && (w.startH < w.endH ? h >= w.startH && h < w.endH : h >= w.startH || h < w.endH))) {
-          inside[s] = 1;
-          count++;
+      for (const w of p.windows) {
+        const a = Math.ceil(w.startH / slotH - 0.5);
+        const len = Math.round(windowHours(w.startH, w.endH) / slotH);
+        for (let j = 0; j < len && j < PROFILE_SLOTS; j++) {
+          const s = (a + j) % PROFILE_SLOTS;
+          if (!inside[s]) { inside[s] = 1; count++; }
         }
       }
       if (count > 0) {
         const w = lb.runWhPerDay / (count * slotH);
-        for (let s = 0; s < PROFILE_SLOTS; s++) prof[s]! += (inside[s] ? w : 0) + standbyAvg;
+        for (let s = 0; s < PROFILE_SLOTS; s++) if (inside[s]) prof[s]! += w;
+        addConstant(lb.bankId, lb.standbyWhPerDay / 24);
         return;
       }
     }
-    const avg = (lb.runWhPerDay + lb.standbyWhPerDay) / 24;
-    for (let s = 0; s < PROFILE_SLOTS; s++) prof[s]! += avg;
+    addConstant(lb.bankId, (lb.runWhPerDay + lb.standbyWhPerDay) / 24);
   });
   for (const x of budget.standby) {
     if (x.kind === "load-standby" || !x.bankId) continue;
-    const prof = profiles.get(x.bankId);
+    addConstant(x.bankId, x.w);
+  }
+  for (const [bankId, w] of constant) {
+    const prof = profiles.get(bankId);
     if (!prof) continue;
-    for (let s = 0; s < PROFILE_SLOTS; s++) prof[s]! += x.w;
+    for (let s = 0; s < PROFILE_SLOTS; s++) prof[s]! += w;
   }
   return profiles;
 }

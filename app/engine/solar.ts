@@ -75,11 +75,21 @@ export interface SunPosition {
 
 const norm360 = (x: number): number => ((x % 360) + 360) % 360;
 
-export function sunPosition(ms: number, latDeg: number, lonDeg: number, opts: SunPositionOptions = {}): SunPosition {
+/** The slowly varying part of the sun's apparent position (geocentric, of date). */
+export interface SunCoordinates {
+  /** Apparent right ascension and declination, radians. */
+  alphaRad: number;
+  deltaRad: number;
+  /** Earth–Sun distance, AU. */
+  distanceAu: number;
+  /** Equation of the equinoxes Δψ·cos ε, degrees (mean → apparent sidereal time). */
+  eqEquinoxDeg: number;
+}
+
+export function sunCoordinates(ms: number, deltaTSeconds?: number): SunCoordinates {
   const jd = julianDay(ms);
-  const dT = opts.deltaTSeconds ?? estimateDeltaTSeconds(ms);
-  const jde = jd + dT / 86400;
-  const T = (jde - 2451545) / 36525;
+  const dT = deltaTSeconds ?? estimateDeltaTSeconds(ms);
+  const T = (jd + dT / 86400 - 2451545) / 36525;
 
   // Meeus 25.2–25.5: geometric mean longitude, mean anomaly, eccentricity, equation of centre.
   const L0 = norm360(280.46646 + 36000.76983 * T + 0.0003032 * T * T);
@@ -105,14 +115,37 @@ export function sunPosition(ms: number, latDeg: number, lonDeg: number, opts: Su
 
   // Apparent longitude: nutation in longitude and aberration (−20.4898″ / R).
   const lambda = (trueLon + dPsi - 20.4898 / 3600 / R) * DEG;
-  const alpha = Math.atan2(Math.cos(eps) * Math.sin(lambda), Math.cos(lambda));
-  const delta = Math.asin(Math.sin(eps) * Math.sin(lambda));
+  return {
+    alphaRad: Math.atan2(Math.cos(eps) * Math.sin(lambda), Math.cos(lambda)),
+    deltaRad: Math.asin(Math.sin(eps) * Math.sin(lambda)),
+    distanceAu: R,
+    eqEquinoxDeg: dPsi * Math.cos(eps),
+  };
+}
 
+/** Linear interpolation of two coordinate sets a fraction f of the way (RA unwrapped). */
+export function interpolateSunCoordinates(a: SunCoordinates, b: SunCoordinates, f: number): SunCoordinates {
+  let dA = b.alphaRad - a.alphaRad;
+  if (dA > Math.PI) dA -= 2 * Math.PI;
+  else if (dA < -Math.PI) dA += 2 * Math.PI;
+  return {
+    alphaRad: a.alphaRad + dA * f,
+    deltaRad: a.deltaRad + (b.deltaRad - a.deltaRad) * f,
+    distanceAu: a.distanceAu + (b.distanceAu - a.distanceAu) * f,
+    eqEquinoxDeg: a.eqEquinoxDeg + (b.eqEquinoxDeg - a.eqEquinoxDeg) * f,
+  };
+}
+
+/** Topocentric horizon position from the sun's coordinates at an instant. */
+export function sunHorizontal(c: SunCoordinates, ms: number, latDeg: number, lonDeg: number, opts: SunPositionOptions = {}): SunPosition {
+  const jd = julianDay(ms);
+  const alpha = c.alphaRad;
+  const delta = c.deltaRad;
+  const R = c.distanceAu;
   // Apparent sidereal time at Greenwich (Meeus 12.4 + equation of the equinoxes).
   const Tu = (jd - 2451545) / 36525;
-  const theta0 = norm360(280.46061837 + 360.98564736629 * (jd - 2451545) + 0.000387933 * Tu * Tu - (Tu * Tu * Tu) / 38710000);
-  const theta = theta0 + dPsi * Math.cos(eps);
-  const H = norm360(theta + lonDeg - alpha / DEG) * DEG;
+  const theta0 = 280.46061837 + 360.98564736629 * (jd - 2451545) + 0.000387933 * Tu * Tu - (Tu * Tu * Tu) / 38710000;
+  const H = norm360(theta0 + c.eqEquinoxDeg + lonDeg - alpha / DEG) * DEG;
 
   // Topocentric correction (SPA eqs. 37–42).
   const phi = latDeg * DEG;
@@ -121,19 +154,25 @@ export function sunPosition(ms: number, latDeg: number, lonDeg: number, opts: Su
   const h = opts.elevationM ?? 0;
   const x = Math.cos(u) + (h / 6378140) * Math.cos(phi);
   const y = 0.99664719 * Math.sin(u) + (h / 6378140) * Math.sin(phi);
-  const dAlpha = Math.atan2(-x * Math.sin(xi) * Math.sin(H), Math.cos(delta) - x * Math.sin(xi) * Math.cos(H));
-  const deltaP = Math.atan2((Math.sin(delta) - y * Math.sin(xi)) * Math.cos(dAlpha), Math.cos(delta) - x * Math.sin(xi) * Math.cos(H));
+  const sinXi = Math.sin(xi);
+  const cosH = Math.cos(H);
+  const cosD = Math.cos(delta);
+  const dAlpha = Math.atan2(-x * sinXi * Math.sin(H), cosD - x * sinXi * cosH);
+  const deltaP = Math.atan2((Math.sin(delta) - y * sinXi) * Math.cos(dAlpha), cosD - x * sinXi * cosH);
   const Hp = H - dAlpha;
 
   // Elevation, refraction (SPA eqs. 41–44), azimuth (eqs. 45–46).
-  const e0 = Math.asin(Math.sin(phi) * Math.sin(deltaP) + Math.cos(phi) * Math.cos(deltaP) * Math.cos(Hp)) / DEG;
+  const sinPhi = Math.sin(phi);
+  const cosPhi = Math.cos(phi);
+  const cosHp = Math.cos(Hp);
+  const e0 = Math.asin(sinPhi * Math.sin(deltaP) + cosPhi * Math.cos(deltaP) * cosHp) / DEG;
   const P = opts.pressureMbar ?? 1010;
   const Tc = opts.temperatureC ?? 10;
   const refr = opts.refraction === false || e0 < -0.26667 - 0.5667
     ? 0
     : (P / 1010) * (283 / (273 + Tc)) * (1.02 / (60 * Math.tan((e0 + 10.3 / (e0 + 5.11)) * DEG)));
   const elev = e0 + refr;
-  const gamma = Math.atan2(Math.sin(Hp), Math.cos(Hp) * Math.sin(phi) - Math.tan(deltaP) * Math.cos(phi)) / DEG;
+  const gamma = Math.atan2(Math.sin(Hp), cosHp * sinPhi - Math.tan(deltaP) * cosPhi) / DEG;
   return {
     zenithDeg: 90 - elev,
     azimuthDeg: norm360(gamma + 180),
@@ -143,6 +182,10 @@ export function sunPosition(ms: number, latDeg: number, lonDeg: number, opts: Su
     distanceAu: R,
     julianDay: jd,
   };
+}
+
+export function sunPosition(ms: number, latDeg: number, lonDeg: number, opts: SunPositionOptions = {}): SunPosition {
+  return sunHorizontal(sunCoordinates(ms, opts.deltaTSeconds), ms, latDeg, lonDeg, opts);
 }
 
 /* ------------------------------------------------------------ irradiance */
