@@ -1,4 +1,5 @@
 import {
+  data,
   isRouteErrorResponse,
   Links,
   Meta,
@@ -10,7 +11,9 @@ import {
 import type { Route } from "./+types/root";
 import { AppShell } from "~/components/app-shell";
 import { ServiceWorkerUpdate } from "~/components/sw-update";
-import { nightFromCookieHeader } from "~/lib/night-mode";
+import { nightCookieValue } from "~/lib/night-mode";
+import { getUserAndRefresh } from "~/auth/session.server";
+import { navFor } from "~/components/app-shell";
 import "./app.css";
 
 export const links: Route.LinksFunction = () => [
@@ -20,8 +23,17 @@ export const links: Route.LinksFunction = () => [
   { rel: "apple-touch-icon", href: "/icons/icon-180.png" },
 ];
 
-export function loader({ request }: Route.LoaderArgs) {
-  return { night: nightFromCookieHeader(request.headers.get("cookie")) };
+export async function loader({ request }: Route.LoaderArgs) {
+  // Every page learns who is signed in; a session in use has its expiry rolled forward here.
+  const { user, setCookie } = await getUserAndRefresh(request);
+  const chosen = nightCookieValue(request.headers.get("cookie"));
+  return data(
+    {
+      night: chosen ?? user?.preferences.nightDefault ?? false,
+      user: user ? { name: user.name, email: user.email } : null,
+    },
+    setCookie ? { headers: { "Set-Cookie": setCookie } } : undefined,
+  );
 }
 
 export function Layout({ children }: { children: React.ReactNode }) {
@@ -48,7 +60,7 @@ export function Layout({ children }: { children: React.ReactNode }) {
 
 export default function App({ loaderData }: Route.ComponentProps) {
   return (
-    <AppShell night={loaderData.night}>
+    <AppShell night={loaderData.night} nav={navFor(loaderData.user !== null)}>
       <Outlet />
       <ServiceWorkerUpdate />
     </AppShell>

@@ -16,12 +16,24 @@ const icons = {
       <path d="M3 7h12v9H3zM15 10h4l2 3v3h-6M7 19a2 2 0 1 0 0-.01M17 19a2 2 0 1 0 0-.01" fill="none" stroke="currentColor" strokeWidth="2" strokeLinejoin="round" />
     </svg>
   ),
+  account: (
+    <svg viewBox="0 0 24 24" aria-hidden="true" className="size-6">
+      <path d="M12 12a4 4 0 1 0 0-8 4 4 0 0 0 0 8zM4 21a8 8 0 0 1 16 0" fill="none" stroke="currentColor" strokeWidth="2" strokeLinecap="round" />
+    </svg>
+  ),
 };
 
 export const primaryNav: NavItem[] = [
   { to: "/", label: "Now", icon: icons.now, end: true },
   { to: "/rigs", label: "Rigs", icon: icons.rigs },
 ];
+
+/** The navigation for a signed-in person, or the sign-in entry for everyone else. */
+export function navFor(signedIn: boolean): NavItem[] {
+  return signedIn
+    ? [...primaryNav, { to: "/account", label: "Account", icon: icons.account }]
+    : [primaryNav[0]!, { to: "/sign-in", label: "Sign in", icon: icons.account }];
+}
 
 /**
  * Phone: content with a bottom navigation bar. Wide screens: a side rail on the left.

@@ -6,6 +6,12 @@ export function nightFromCookieHeader(header: string | null): boolean {
   return header.split(/;\s*/).some((part) => part === `${NIGHT_COOKIE}=1`);
 }
 
+/** The night-mode choice stored in this browser, or null when none was made here yet. */
+export function nightCookieValue(header: string | null): boolean | null {
+  const part = header?.split(/;\s*/).find((p) => p.startsWith(`${NIGHT_COOKIE}=`));
+  return part === undefined ? null : part === `${NIGHT_COOKIE}=1`;
+}
+
 export function setNightMode(on: boolean) {
   document.documentElement.classList.toggle("night", on);
   document.cookie = `${NIGHT_COOKIE}=${on ? 1 : 0}; Path=/; Max-Age=31536000; SameSite=Lax`;

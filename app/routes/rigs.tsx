@@ -1,11 +1,41 @@
-import { Link } from "react-router";
+import { data, Form, redirect, useActionData, useNavigation } from "react-router";
+import { z } from "zod";
 import type { Route } from "./+types/rigs";
+import { protectedAction } from "~/auth/csrf.server";
+import { requireUser } from "~/auth/session.server";
 import { getDb } from "~/db/db.server";
-import { listRigs } from "~/repos/rigs.server";
+import { createRig, listRigsForUser } from "~/repos/rigs.server";
+import { starterModel } from "~/repos/starter-model";
+import { RigList } from "~/components/account/rig-list";
+import { Button, Card, Field } from "~/components/ui/form";
 
-export async function loader() {
-  return { rigs: await listRigs(getDb()) };
+const rigNameSchema = z
+  .string({ error: "Name the rig." })
+  .trim()
+  .min(1, "Name the rig, e.g. the van's or the boat's name.")
+  .max(80, "Keep the name under 80 characters.");
+
+/** GET /rigs — the rigs this person is on, with their role; POST creates one they own. */
+export async function loader({ request }: Route.LoaderArgs) {
+  const user = await requireUser(request);
+  const rigs = await listRigsForUser(getDb(), user.id);
+  return { rigs: rigs.map(({ id, name, role }) => ({ id, name, role })) };
 }
+
+export const action = protectedAction(async ({ request }: Route.ActionArgs) => {
+  const user = await requireUser(request);
+  const form = await request.formData();
+  const typed = String(form.get("name") ?? "");
+  const parsed = rigNameSchema.safeParse(typed);
+  if (!parsed.success) return data({ values: { name: typed }, error: parsed.error.issues[0]?.message }, { status: 400 });
+  const { rig } = await createRig(getDb(), {
+    name: parsed.data,
+    ownerId: user.id,
+    document: starterModel({ name: parsed.data }),
+    message: "New rig",
+  });
+  return redirect(`/rigs/${rig.id}`);
+});
 
 export function meta() {
   return [{ title: "Rigs · Tilldawn" }];
@@ -13,25 +43,41 @@ export function meta() {
 
 export default function Rigs({ loaderData }: Route.ComponentProps) {
   const { rigs } = loaderData;
+  const answer = useActionData<typeof action>();
+  const busy = useNavigation().state === "submitting";
   return (
-    <div className="space-y-4">
+    <div className="space-y-6">
       <h1 className="text-3xl font-bold">Rigs</h1>
       {rigs.length === 0 ? (
-        <p className="rounded-2xl border border-night-700 bg-night-900 p-4 text-night-200">No rigs yet.</p>
+        <p className="rounded-2xl border border-night-700 bg-night-900 p-4 text-night-200">
+          You are not on any rig yet. Create one below, or open an invitation link from a rig's owner.
+        </p>
       ) : (
-        <ul className="space-y-2">
-          {rigs.map((rig) => (
-            <li key={rig.id}>
-              <Link
-                to={`/rigs/${rig.id}`}
-                className="flex min-h-14 items-center rounded-2xl border border-night-700 bg-night-900 px-4 text-lg font-bold hover:border-dawn-500"
-              >
-                {rig.name}
-              </Link>
-            </li>
-          ))}
-        </ul>
+        <RigList rigs={rigs} />
       )}
+      <Card>
+        <h2 id="create" className="text-xl font-bold">
+          Create a rig
+        </h2>
+        <p className="text-night-200">
+          You become its owner. It starts with one 100 Ah LiFePO4 house bank and a main DC bus, ready for you to record
+          it as built.
+        </p>
+        <Form method="post" className="space-y-4" noValidate>
+          <Field
+            label="Rig name"
+            name="name"
+            required
+            maxLength={80}
+            placeholder="e.g. Kestrel"
+            defaultValue={answer?.values.name ?? ""}
+            error={answer?.error}
+          />
+          <Button type="submit" disabled={busy}>
+            {busy ? "Creating…" : "Create rig"}
+          </Button>
+        </Form>
+      </Card>
     </div>
   );
 }

@@ -1,0 +1,238 @@
+/**
+ * Sign-in with an e-mailed one-time code and magic link (remix-auth + remix-auth-totp).
+ *
+ * The strategy keeps the code encrypted in its own `_totp` cookie (10 minutes). Around it we
+ * add what it does not do for us: rate limits on requesting codes (per e-mail address and per
+ * client address, in PostgreSQL), a cap on tries per code and single use (limits.server.ts),
+ * accounts created on first sign-in, and our own session (session.server.ts).
+ */
+import { eq, sql } from "drizzle-orm";
+import { data, redirect } from "react-router";
+import { Authenticator } from "remix-auth";
+import { TOTPStrategy } from "remix-auth-totp";
+import { z } from "zod";
+import { getDb, type Db } from "~/db/db.server";
+import { users } from "~/db/schema";
+import { appOrigin, getEnv } from "~/env.server";
+import { clientAddress } from "~/lib/rate-limit.server";
+import { MailError, sendMail } from "~/mail/mailer.server";
+import { signInCodeMail } from "~/mail/templates";
+import { CODE_REQUEST_WINDOW_S, consumeCode, hitLimit, MAX_CODE_ATTEMPTS, recordCodeAttempt } from "./limits.server";
+import { createSession, safeRedirect } from "./session.server";
+
+export const CODE_VALID_MINUTES = 10;
+export const MAGIC_LINK_PATH = "/auth/verify";
+const CODE_COOKIE = "_totp";
+
+export const emailSchema = z
+  .string({ error: "Enter your e-mail address." })
+  .trim()
+  .min(1, "Enter your e-mail address.")
+  .max(254, "That address is too long.")
+  .pipe(z.email({ error: "That does not look like an e-mail address. Check it and try again." }))
+  .transform((s) => s.toLowerCase());
+
+export const codeSchema = z
+  .string({ error: "Enter the code from the e-mail." })
+  .transform((s) => s.replace(/\s+/g, ""))
+  .pipe(z.string().regex(/^\d{6}$/, "The code is the 6 digits from the e-mail."));
+
+export const messages = {
+  invalidCode: "That code is not right. Check the e-mail and try again.",
+  expiredCode: `That code has expired (codes work for ${CODE_VALID_MINUTES} minutes). Ask for a new one.`,
+  tooManyTries: `Too many wrong tries for this code (the limit is ${MAX_CODE_ATTEMPTS}). Ask for a new code.`,
+  usedCode: "That code has already been used. Ask for a new one.",
+  noCode: "There is no code waiting in this browser. Ask for a new one here.",
+};
+
+/** What the strategy keeps in its cookie: the address, the encrypted code and the last error. */
+export function readCodeCookie(request: Request): { email: string | null; jwe: string | null; error: string | null } {
+  const header = request.headers.get("cookie") ?? "";
+  const raw = header
+    .split(/;\s*/)
+    .find((part) => part.startsWith(`${CODE_COOKIE}=`))
+    ?.slice(CODE_COOKIE.length + 1);
+  if (!raw) return { email: null, jwe: null, error: null };
+  const params = new URLSearchParams(raw.replace(/^"|"$/g, ""));
+  let jwe: string | null = null;
+  try {
+    const totp = JSON.parse(params.get("totp") ?? "null") as { jwe?: unknown } | null;
+    jwe = typeof totp?.jwe === "string" ? totp.jwe : null;
+  } catch {
+    jwe = null;
+  }
+  return { email: params.get("email") || null, jwe, error: params.get("error") || null };
+}
+
+let authenticator: Authenticator<void> | undefined;
+
+function getAuthenticator(): Authenticator<void> {
+  if (authenticator) return authenticator;
+  const env = getEnv();
+  const strategy = new TOTPStrategy<void>(
+    {
+      secret: env.TOTP_SECRET,
+      magicLinkPath: MAGIC_LINK_PATH,
+      emailSentRedirect: "/sign-in",
+      successRedirect: "/",
+      failureRedirect: "/sign-in",
+      cookieOptions: {
+        maxAge: CODE_VALID_MINUTES * 60,
+        ...(env.APP_URL?.startsWith("https:") ? { secure: true as const } : {}),
+      },
+      totpGeneration: { period: CODE_VALID_MINUTES * 60, digits: 6, charSet: "0123456789", maxAttempts: MAX_CODE_ATTEMPTS },
+      customErrors: {
+        invalidTotp: messages.invalidCode,
+        expiredTotp: messages.expiredCode,
+        rateLimitExceeded: messages.tooManyTries,
+        missingSessionEmail: messages.noCode,
+        missingSessionTotp: messages.noCode,
+      },
+      validateEmail: async (email) => emailSchema.safeParse(email).success,
+      sendTOTP: async ({ email, code, magicLink, formData }) => {
+        // Links point at APP_URL (the strategy builds them from the request, which behind a
+        // proxy is the internal address), and carry where to go after signing in.
+        const link = new URL(magicLink);
+        const target = new URL(`${link.pathname}${link.search}`, appOrigin());
+        const redirectTo = safeRedirect(formData.get("redirectTo"), "");
+        if (redirectTo) target.searchParams.set("redirectTo", redirectTo);
+        await sendMail(signInCodeMail({ to: email, code, magicLink: target.toString(), validMinutes: CODE_VALID_MINUTES }));
+      },
+    },
+    async ({ email, formData, request }) => {
+      // The strategy ignores what verify returns: we end the sign-in by throwing our redirect,
+      // carrying the session cookie. The strategy appends its own cookie (now cleared).
+      const db = getDb();
+      const { jwe } = readCodeCookie(request);
+      if (jwe) await consumeCode(db, jwe);
+      const { user, created } = await findOrCreateUser(db, email);
+      const session = await createSession(db, user.id, request.headers.get("user-agent") ?? "");
+      const wanted = safeRedirect(formData?.get("redirectTo") ?? new URL(request.url).searchParams.get("redirectTo"));
+      const to = created || !user.name ? `/welcome?${new URLSearchParams({ redirectTo: wanted })}` : wanted;
+      throw redirect(to, { headers: { "Set-Cookie": session.setCookie } });
+    },
+  );
+  authenticator = new Authenticator<void>().use(strategy);
+  return authenticator;
+}
+
+/** Finds the account for an address (any letter case) or creates it on first sign-in. */
+export async function findOrCreateUser(db: Db, email: string) {
+  const normalized = email.trim().toLowerCase();
+  const [existing] = await db.select().from(users).where(eq(sql`lower(${users.email})`, normalized));
+  if (existing) return { user: existing, created: false };
+  const [inserted] = await db.insert(users).values({ email: normalized }).onConflictDoNothing().returning();
+  if (inserted) return { user: inserted, created: true };
+  const [raced] = await db.select().from(users).where(eq(sql`lower(${users.email})`, normalized));
+  if (!raced) throw new Error("user vanished while signing in");
+  return { user: raced, created: false };
+}
+
+/** Runs the strategy and hands back the Response it throws (it always throws one). */
+async function runStrategy(request: Request): Promise<Response> {
+  try {
+    await getAuthenticator().authenticate("TOTP", request);
+  } catch (thrown) {
+    if (thrown instanceof Response) return thrown;
+    throw thrown;
+  }
+  throw new Error("the sign-in strategy returned without an answer");
+}
+
+function formRequest(request: Request, fields: Record<string, string>): Request {
+  const headers = new Headers();
+  for (const name of ["cookie", "user-agent", "origin", "x-forwarded-for", "x-real-ip"]) {
+    const value = request.headers.get(name);
+    if (value) headers.set(name, value);
+  }
+  headers.set("content-type", "application/x-www-form-urlencoded");
+  return new Request(request.url, { method: "POST", headers, body: new URLSearchParams(fields) });
+}
+
+export type SignInFormResult = {
+  step: "email" | "code";
+  values: { email: string; redirectTo: string };
+  error?: string;
+  fieldErrors?: { email?: string; code?: string };
+  retryAfterS?: number;
+};
+
+function tooMany(values: SignInFormResult["values"], step: SignInFormResult["step"], retryAfterS: number, what: string) {
+  const minutes = Math.ceil(retryAfterS / 60);
+  return data<SignInFormResult>(
+    {
+      step,
+      values,
+      retryAfterS,
+      error: `${what} Try again in ${minutes} minute${minutes === 1 ? "" : "s"}.`,
+    },
+    { status: 429, headers: { "Retry-After": String(retryAfterS) } },
+  );
+}
+
+/**
+ * Sends a code (new or again) to `email`, within the limits. Answers the strategy's redirect
+ * (with its cookie), or 400/429/503 with the form values.
+ */
+export async function requestCode(request: Request, input: { email: unknown; redirectTo: string }, db: Db = getDb()) {
+  const env = getEnv();
+  const typed = typeof input.email === "string" ? input.email : "";
+  const values = { email: typed, redirectTo: input.redirectTo };
+  const parsed = emailSchema.safeParse(typed);
+  if (!parsed.success) {
+    return data<SignInFormResult>(
+      { step: "email", values, fieldErrors: { email: parsed.error.issues[0]?.message } },
+      { status: 400 },
+    );
+  }
+  const email = parsed.data;
+  const byAddress = await hitLimit(db, `sign-in-code:ip:${clientAddress(request)}`, env.SIGN_IN_CODES_PER_ADDRESS, CODE_REQUEST_WINDOW_S);
+  if (!byAddress.ok) return tooMany(values, "email", byAddress.retryAfterS, "Too many sign-in codes were asked for from this network.");
+  const byEmail = await hitLimit(db, `sign-in-code:email:${email}`, env.SIGN_IN_CODES_PER_EMAIL, CODE_REQUEST_WINDOW_S);
+  if (!byEmail.ok) return tooMany(values, "email", byEmail.retryAfterS, `Too many sign-in codes were sent to ${email}.`);
+  try {
+    const answer = await runStrategy(formRequest(request, { email, redirectTo: input.redirectTo }));
+    return withRedirectTo(answer, input.redirectTo);
+  } catch (error) {
+    if (error instanceof MailError) {
+      return data<SignInFormResult>(
+        { step: "email", values, error: "The e-mail with your code could not be sent. Try again in a moment." },
+        { status: 503 },
+      );
+    }
+    throw error;
+  }
+}
+
+/** Checks a typed code (or a magic link, when `code` is null) within the per-code cap. */
+export async function verifyCode(request: Request, input: { code: string | null; redirectTo: string }, db: Db = getDb()) {
+  const cookie = readCodeCookie(request);
+  const values = { email: cookie.email ?? "", redirectTo: input.redirectTo };
+  if (input.code !== null) {
+    const parsed = codeSchema.safeParse(input.code);
+    if (!parsed.success) {
+      return data<SignInFormResult>({ step: "code", values, fieldErrors: { code: parsed.error.issues[0]?.message } }, { status: 400 });
+    }
+    input = { ...input, code: parsed.data };
+  }
+  if (!cookie.email || !cookie.jwe) {
+    return data<SignInFormResult>({ step: "email", values, error: messages.noCode }, { status: 400 });
+  }
+  const attempt = await recordCodeAttempt(db, cookie.jwe, cookie.email);
+  if (!attempt.ok) {
+    const error = attempt.reason === "used" ? messages.usedCode : messages.tooManyTries;
+    return data<SignInFormResult>({ step: "code", values, error }, { status: attempt.reason === "used" ? 400 : 429 });
+  }
+  const strategyRequest =
+    input.code === null ? request : formRequest(request, { code: input.code, redirectTo: input.redirectTo });
+  return withRedirectTo(await runStrategy(strategyRequest), input.redirectTo);
+}
+
+/** The strategy redirects to bare /sign-in; keep where the person was going. */
+function withRedirectTo(answer: Response, redirectTo: string): Response {
+  const location = answer.headers.get("location");
+  if (location !== "/sign-in" || redirectTo === "/") return answer;
+  const headers = new Headers(answer.headers);
+  headers.set("location", `/sign-in?${new URLSearchParams({ redirectTo })}`);
+  return new Response(null, { status: answer.status, headers });
+}

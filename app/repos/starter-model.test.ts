@@ -1,0 +1,21 @@
+import { describe, expect, test } from "vitest";
+import { validateModel } from "~/engine/model";
+import { starterModel } from "./starter-model";
+
+describe("A new rig's starter model", () => {
+  test("passes the engine's validation with one bank, one bus, no loads and one mode", () => {
+    const model = starterModel({ name: "Kestrel" });
+    const checked = validateModel(model);
+    expect(checked.ok ? [] : checked.issues).toEqual([]);
+    expect(model.banks).toHaveLength(1);
+    expect(model.buses).toHaveLength(1);
+    expect(model.loads).toHaveLength(0);
+    expect(model.modes).toHaveLength(1);
+    expect(model.name).toBe("Kestrel");
+  });
+
+  test("keeps a given time zone and home position", () => {
+    const checked = validateModel(starterModel({ name: "Tern", timeZone: "Europe/Lisbon", latDeg: 38.7, lonDeg: -9.1 }));
+    expect(checked.ok).toBe(true);
+  });
+});
