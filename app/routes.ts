@@ -14,6 +14,9 @@ export default [
   // Rigs and who is on them
   route("rigs", "routes/rigs.tsx"),
   route("rigs/:rigId", "routes/rig.tsx"),
+  route("rigs/:rigId/log", "routes/rig.log.tsx"),
+  route("rigs/:rigId/log/import", "routes/rig.log.import.tsx"),
+  route("rigs/:rigId/log/:readingId", "routes/rig.log.$readingId.tsx"),
   route("rigs/:rigId/members", "routes/members.tsx"),
   route("invites/:token", "routes/invite.tsx"),
 
@@ -25,6 +28,12 @@ export default [
   route("api/v1/me", "routes/api.v1.me.ts"),
   route("api/v1/projection", "routes/api.v1.projection.ts"),
   route("api/v1/schema", "routes/api.v1.schema.ts"),
+  route("api/sync", "routes/api.sync.ts"),
+  route("api/rigs/:rigId/readings", "routes/api.rigs.$rigId.readings.ts"),
+  route("api/rigs/:rigId/readings.csv", "routes/api.rigs.$rigId.readings.csv.ts"),
+  route("api/rigs/:rigId/model", "routes/api.rigs.model.ts"),
+  route("api/rigs/:rigId/state", "routes/api.rigs.state.ts"),
+  route("api/rigs/:rigId/modes", "routes/api.rigs.modes.ts"),
 
   route("*", "routes/not-found.tsx"),
 ] satisfies RouteConfig;
