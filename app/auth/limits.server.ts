@@ -11,9 +11,9 @@ import { createHash } from "node:crypto";
 import { eq, lt, sql } from "drizzle-orm";
 import type { Db } from "~/db/db.server";
 import { rateLimitBuckets, signInCodes } from "~/db/schema";
+import { MAX_CODE_ATTEMPTS } from "./constants";
 
 export const CODE_REQUEST_WINDOW_S = 15 * 60;
-export const MAX_CODE_ATTEMPTS = 5;
 
 export type LimitResult = { ok: true; count: number } | { ok: false; retryAfterS: number };
 

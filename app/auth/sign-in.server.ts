@@ -17,10 +17,12 @@ import { appOrigin, getEnv } from "~/env.server";
 import { clientAddress } from "~/lib/rate-limit.server";
 import { MailError, sendMail } from "~/mail/mailer.server";
 import { signInCodeMail } from "~/mail/templates";
-import { CODE_REQUEST_WINDOW_S, consumeCode, hitLimit, MAX_CODE_ATTEMPTS, recordCodeAttempt } from "./limits.server";
+import { CODE_VALID_MINUTES, MAX_CODE_ATTEMPTS } from "./constants";
+import { CODE_REQUEST_WINDOW_S, consumeCode, hitLimit, recordCodeAttempt } from "./limits.server";
+
+export { CODE_VALID_MINUTES };
 import { createSession, safeRedirect } from "./session.server";
 
-export const CODE_VALID_MINUTES = 10;
 export const MAGIC_LINK_PATH = "/auth/verify";
 const CODE_COOKIE = "_totp";
 

@@ -9,8 +9,8 @@ import type { Db } from "~/db/db.server";
 import { rigInvites, rigMembers, rigs, users } from "~/db/schema";
 import type { Role } from "~/auth/roles";
 import { hashOf } from "~/auth/limits.server";
+import { INVITE_DAYS } from "~/auth/constants";
 
-export const INVITE_DAYS = 7;
 
 /** A change refused by a rule people can understand; the message is shown as is. */
 export class MembershipError extends Error {

@@ -2,7 +2,8 @@ import { Form, Link, redirect, useActionData, useNavigation } from "react-router
 import type { Route } from "./+types/sign-in";
 import { protectedAction } from "~/auth/csrf.server";
 import { getUser, safeRedirect } from "~/auth/session.server";
-import { CODE_VALID_MINUTES, readCodeCookie, requestCode, verifyCode, type SignInFormResult } from "~/auth/sign-in.server";
+import { readCodeCookie, requestCode, verifyCode, type SignInFormResult } from "~/auth/sign-in.server";
+import { CODE_VALID_MINUTES } from "~/auth/constants";
 import { Button, Field, Notice } from "~/components/ui/form";
 
 export async function loader({ request }: Route.LoaderArgs) {
