@@ -59,8 +59,8 @@ function rowToState(row: Row, names: Map<string, string>): RigState {
   };
 }
 
-async function authorNames(db: Db, row: Row): Promise<Map<string, string>> {
-  const ids = [...new Set(Object.values(row.fieldTimes as Record<string, FieldTime>).flatMap((t) => (t.by ? [t.by] : [])))];
+async function authorNames(db: Db, row: Row, more: Array<string | null> = []): Promise<Map<string, string>> {
+  const ids = [...new Set([...Object.values(row.fieldTimes as Record<string, FieldTime>).map((t) => t.by), ...more].flatMap((by) => (by ? [by] : [])))];
   if (!ids.length) return new Map();
   const found = await db.select({ id: users.id, name: users.name, email: users.email }).from(users).where(inArray(users.id, ids));
   return new Map(found.map((u) => [u.id, u.name || u.email.split("@")[0]!]));
@@ -179,7 +179,7 @@ export async function writeRigState(db: Db, input: WriteInput): Promise<StateWri
     if (history.length) await tx.insert(switchChanges).values(history);
     return { after, lost, replaced };
   });
-  const names = await authorNames(db, row.after);
+  const names = await authorNames(db, row.after, [...row.lost, ...row.replaced].map((x) => x.by));
   const named = (s: Superseded): Superseded => {
     const byName = s.by ? names.get(s.by) : undefined;
     return byName ? { ...s, byName } : s;
