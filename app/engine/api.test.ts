@@ -1,0 +1,73 @@
+import { readFileSync } from "node:fs";
+import { describe, expect, it } from "vitest";
+import { handleProjectionRequest, parseProjectionRequest, projectionRequestJsonSchema, runProjectionRequest } from "./api";
+
+const body = JSON.parse(readFileSync(new URL("../../tests/fixtures/projection-request.json", import.meta.url), "utf8")) as Record<string, unknown>;
+
+describe("POST /api/v1/projection contract", () => {
+  it("answers the fixture request with projection, budget, audit and circuit graph", () => {
+    const res = handleProjectionRequest(body);
+    expect(res.status).toBe(200);
+    if (res.status !== 200) return;
+    const r = res.body;
+    expect(r.projection.banks.map((b) => b.bankId)).toEqual(["house", "starter"]);
+    expect(r.projection.timesMs).toHaveLength(72 * 12 + 1);
+    expect(r.projection.banks[0]!.socPct).toHaveLength(72 * 12 + 1);
+    expect(r.budget.modeName).toBe("Parked night");
+    expect(r.audit.failureCount).toBe(0);
+    expect(r.circuitGraph.loads.find((l) => l.loadId === "hob")!.switchCount).toBe(5);
+    expect(r.autonomy[0]!.daysNoCharge).toBeGreaterThan(0);
+    // Plain JSON: survives a round trip unchanged (no NaN, Infinity or typed arrays).
+    expect(JSON.parse(JSON.stringify(r))).toEqual(r);
+  });
+
+  it("can leave out the curves", () => {
+    const parsed = parseProjectionRequest({ ...body, options: { includeCurves: false } });
+    expect(parsed.ok).toBe(true);
+    if (!parsed.ok) return;
+    const r = runProjectionRequest(parsed.value);
+    expect(r.projection.timesMs).toBeUndefined();
+    expect(r.projection.banks[0]!.socPct).toBeUndefined();
+  });
+
+  it("answers 400 with zod issue paths for bad input", () => {
+    const bad = structuredClone(body) as { state: { weatherFactor: unknown }; model: { banks: { ratedAh: unknown }[] } };
+    bad.state.weatherFactor = 3;
+    bad.model.banks[0]!.ratedAh = "lots";
+    const res = handleProjectionRequest(bad);
+    expect(res.status).toBe(400);
+    if (res.status !== 400) return;
+    const paths = res.body.issues.map((i) => i.path.join("."));
+    expect(paths).toContain("state.weatherFactor");
+    expect(paths).toContain("model.banks.0.ratedAh");
+    expect(res.body.code).toBe("invalid_request");
+  });
+
+  it("answers 400 for unknown ids in the state and the model", () => {
+    const bad = structuredClone(body) as { state: { modeId: string; loadsOn?: string[] }; model: { sources: { bankId: string }[] } };
+    bad.state.modeId = "beach";
+    bad.state.loadsOn = ["kettle"];
+    const res = handleProjectionRequest(bad);
+    expect(res.status).toBe(400);
+    if (res.status === 400) expect(res.body.issues.map((i) => i.path.join("."))).toEqual(["state.modeId", "state.loadsOn.0"]);
+    const bad2 = structuredClone(body) as { model: { sources: { bankId: string }[] } };
+    bad2.model.sources[0]!.bankId = "nowhere";
+    const res2 = handleProjectionRequest(bad2);
+    expect(res2.status).toBe(400);
+    if (res2.status === 400) expect(res2.body.issues[0]).toEqual({ path: ["model", "sources", 0, "bankId"], message: 'Roof solar charges unknown bank "nowhere"' });
+  });
+
+  it("never throws on junk", () => {
+    for (const junk of [undefined, null, 0, "x", [], {}, { model: null, state: null }, { model: body.model, state: {} }]) {
+      expect(handleProjectionRequest(junk).status).toBe(400);
+    }
+  });
+
+  it("converts to JSON Schema", () => {
+    const s = projectionRequestJsonSchema() as { type: string; required: string[]; properties: Record<string, { properties?: Record<string, { format?: string }> }> };
+    expect(s.type).toBe("object");
+    expect(s.required).toEqual(["model", "state"]);
+    expect(s.properties.state!.properties!.dateTime!.format).toBe("date-time");
+    expect(Object.keys(s.properties.model!.properties!)).toContain("circuits");
+  });
+});

@@ -1,0 +1,164 @@
+/**
+ * POST /api/v1/projection: the request schema, a pure runner and the JSON Schema.
+ * The route parses the body with `parseProjectionRequest` (or `handleProjectionRequest`),
+ * answers 400 with the issues' paths on failure and 200 with the result otherwise.
+ */
+import { z } from "zod";
+import { runAudit, type Audit } from "./audit";
+import { autonomy, type Autonomy } from "./autonomy";
+import { buildCircuitGraph, type SwitchStep } from "./circuit-graph";
+import type { Budget } from "./draw";
+import { rigModelSchema, validateModel, type ModelIssue, type RigModel } from "./model";
+import { runProjection, type BankProjection } from "./projection";
+import { currentStateSchema, type CurrentState } from "./state";
+
+export const projectionOptionsSchema = z.object({
+  /** Hours to simulate, default 72. */
+  horizonH: z.number().int().min(1).max(168).optional(),
+  /** Step in minutes, default 5. */
+  stepMin: z.number().int().min(1).max(60).optional(),
+  /** Include the SoC curves (default true); false gives only the headline figures. */
+  includeCurves: z.boolean().optional(),
+});
+
+export const projectionRequestSchema = z.object({
+  model: rigModelSchema,
+  state: currentStateSchema,
+  options: projectionOptionsSchema.optional(),
+});
+export type ProjectionRequest = z.infer<typeof projectionRequestSchema>;
+
+export interface LoadGraphSummary {
+  loadId: string;
+  name: string;
+  essential: boolean;
+  bankId: string | null;
+  via: string[];
+  switchPath: SwitchStep[];
+  switchCount: number;
+  outsideLowVoltageProtection: boolean;
+  drainsBankIds: string[];
+  forcesStandby: { kind: string; id: string; name: string; w: number }[];
+}
+
+export interface ProjectionResult {
+  schemaVersion: 1;
+  projection: {
+    startMs: number;
+    stepMin: number;
+    horizonH: number;
+    timesMs?: number[];
+    nextSunriseMs: number | null;
+    primaryBankId: string;
+    banks: (Omit<BankProjection, "socPct"> & { socPct?: number[] })[];
+  };
+  budget: Budget;
+  audit: Audit;
+  circuitGraph: { loads: LoadGraphSummary[] };
+  autonomy: Autonomy[];
+}
+
+export type ParseResult<T> = { ok: true; value: T } | { ok: false; issues: ModelIssue[] };
+
+function zodIssues(err: z.ZodError): ModelIssue[] {
+  return err.issues.map((i) => ({ path: i.path.map((p) => (typeof p === "symbol" ? String(p) : p)), message: i.message }));
+}
+
+/** Schema, referential and state checks. Never throws. */
+export function parseProjectionRequest(body: unknown): ParseResult<ProjectionRequest> {
+  try {
+    const parsed = projectionRequestSchema.safeParse(body);
+    if (!parsed.success) return { ok: false, issues: zodIssues(parsed.error) };
+    const v = validateModel(parsed.data.model);
+    if (!v.ok) return { ok: false, issues: v.issues.map((i) => ({ path: ["model", ...i.path], message: i.message })) };
+    const issues = checkState(v.model, parsed.data.state);
+    if (issues.length) return { ok: false, issues };
+    return { ok: true, value: { ...parsed.data, model: v.model } };
+  } catch (err) {
+    return { ok: false, issues: [{ path: [], message: `Request could not be read: ${String(err)}` }] };
+  }
+}
+
+function checkState(model: RigModel, state: CurrentState): ModelIssue[] {
+  const issues: ModelIssue[] = [];
+  if (!model.modes.some((m) => m.id === state.modeId)) issues.push({ path: ["state", "modeId"], message: `Unknown mode "${state.modeId}"` });
+  const banks = new Set(model.banks.map((b) => b.id));
+  state.banks.forEach((b, i) => {
+    if (!banks.has(b.bankId)) issues.push({ path: ["state", "banks", i, "bankId"], message: `Unknown bank "${b.bankId}"` });
+    if (b.socPct === undefined && b.restingV === undefined) issues.push({ path: ["state", "banks", i], message: "Give socPct or restingV" });
+  });
+  const loads = new Set(model.loads.map((l) => l.id));
+  state.loadsOn?.forEach((id, i) => {
+    if (!loads.has(id)) issues.push({ path: ["state", "loadsOn", i], message: `Unknown load "${id}"` });
+  });
+  const inverters = new Set(model.inverters.map((x) => x.id));
+  state.inverterIdsOn?.forEach((id, i) => {
+    if (!inverters.has(id)) issues.push({ path: ["state", "inverterIdsOn", i], message: `Unknown inverter "${id}"` });
+  });
+  const switches = new Map(model.switches.map((s) => [s.id, s]));
+  for (const [id, pos] of Object.entries(state.switchPositions ?? {})) {
+    const sw = switches.get(id);
+    if (!sw) issues.push({ path: ["state", "switchPositions", id], message: `Unknown switch "${id}"` });
+    else if (!sw.positions.includes(pos)) issues.push({ path: ["state", "switchPositions", id], message: `${sw.name} has no position "${pos}"` });
+  }
+  return issues;
+}
+
+/** Run everything for a parsed, validated request. Pure. */
+export function runProjectionRequest(req: ProjectionRequest): ProjectionResult {
+  const { model, state } = req;
+  const graph = buildCircuitGraph(model, state.switchPositions);
+  const projection = runProjection(model, graph, state, {
+    ...(req.options?.horizonH !== undefined ? { horizonH: req.options.horizonH } : {}),
+    ...(req.options?.stepMin !== undefined ? { stepMin: req.options.stepMin } : {}),
+  });
+  const curves = req.options?.includeCurves ?? true;
+  const audit = runAudit(model, graph);
+  const loads: LoadGraphSummary[] = model.loads.map((l) => {
+    const g = graph.loads[l.id]!;
+    return {
+      loadId: l.id,
+      name: l.name,
+      essential: l.essential,
+      bankId: g.bankId,
+      via: g.primary?.via.map((v) => v.name) ?? [],
+      switchPath: g.switchPath,
+      switchCount: g.switchCount,
+      outsideLowVoltageProtection: g.outsideLowVoltageProtection,
+      drainsBankIds: g.drainsBankIds,
+      forcesStandby: g.forcesStandby,
+    };
+  });
+  return {
+    schemaVersion: 1,
+    projection: {
+      startMs: projection.startMs,
+      stepMin: projection.stepMin,
+      horizonH: projection.horizonH,
+      ...(curves ? { timesMs: projection.timesMs } : {}),
+      nextSunriseMs: projection.nextSunriseMs,
+      primaryBankId: projection.primaryBankId,
+      banks: projection.banks.map(({ socPct, ...rest }) => (curves ? { ...rest, socPct } : rest)),
+    },
+    budget: projection.budget,
+    audit,
+    circuitGraph: { loads },
+    autonomy: model.banks.map((b) => autonomy(model, graph, projection.budget, b.id, state)),
+  };
+}
+
+/** Parse and run: `{ status: 200, body: result }` or `{ status: 400, body: { code, message, issues } }`. */
+export function handleProjectionRequest(body: unknown):
+  | { status: 200; body: ProjectionResult }
+  | { status: 400; body: { code: "invalid_request"; message: string; issues: ModelIssue[] } } {
+  const parsed = parseProjectionRequest(body);
+  if (!parsed.ok) {
+    return { status: 400, body: { code: "invalid_request", message: "The request does not describe a valid rig and state.", issues: parsed.issues } };
+  }
+  return { status: 200, body: runProjectionRequest(parsed.value) };
+}
+
+/** JSON Schema of the request body (draft 2020-12), for GET /api/v1/schema. */
+export function projectionRequestJsonSchema(): Record<string, unknown> {
+  return z.toJSONSchema(projectionRequestSchema, { io: "input", unrepresentable: "any" }) as Record<string, unknown>;
+}

@@ -1,0 +1,81 @@
+/**
+ * Days of autonomy for a mode, with no charging and with typical sun, and a bank sizing hint.
+ */
+import type { RigModel, SolarSource } from "./model";
+import type { CircuitGraph } from "./circuit-graph";
+import { bankCapacityAh, bankChargeEfficiency, bankNominalV, bankPeukertExponent, bankRatedHourRateH, peukertEffectiveCurrentA, usableEnergy } from "./battery";
+import type { Budget } from "./draw";
+import { how, r, type How } from "./explain";
+import { dayHarvest } from "./solar";
+import type { CurrentState } from "./state";
+
+/** Share of clear-sky harvest assumed for "typical" sun when the caller gives none (an
+ * assumption, not a climate statistic: override with the local clearness). */
+export const TYPICAL_WEATHER_FACTOR = 0.7;
+
+export interface Autonomy {
+  bankId: string;
+  name: string;
+  /** From full down to the stop SoC. */
+  usableWh: number;
+  dailyDrawWh: number;
+  /** Peukert-equivalent daily drain (lead-acid at its average current). */
+  effectiveDailyDrawWh: number;
+  daysNoCharge: number | null;
+  typicalSolarWhPerDay: number;
+  /** Null when typical sun covers the day's draw. */
+  daysWithTypicalSun: number | null;
+  sizing: { targetDays: number; requiredUsableWh: number; requiredRatedAh: number; currentRatedAh: number };
+  how: How;
+}
+
+export function autonomy(
+  model: RigModel, graph: CircuitGraph, budget: Budget, bankId: string,
+  state?: Pick<CurrentState, "dateTime" | "location" | "weatherFactor" | "ambientC">,
+  opts: { targetDays?: number; typicalWeatherFactor?: number } = {},
+): Autonomy {
+  void graph;
+  const bank = model.banks.find((b) => b.id === bankId) ?? model.banks[0]!;
+  const v = bankNominalV(bank);
+  const capAh = bankCapacityAh(bank);
+  const full = usableEnergy(bank, 100);
+  const daily = budget.banks.find((b) => b.bankId === bank.id)?.whPerDay ?? 0;
+  const avgA = daily / 24 / v;
+  const effA = peukertEffectiveCurrentA(avgA, capAh, bankRatedHourRateH(bank), bankPeukertExponent(bank));
+  const effDaily = effA * 24 * v;
+  const daysNoCharge = effDaily > 0 ? full.usableWh / effDaily : null;
+
+  const place = state?.location ?? model.home;
+  const date = (state?.dateTime ?? new Date().toISOString()).slice(0, 10);
+  const wf = opts.typicalWeatherFactor ?? state?.weatherFactor ?? TYPICAL_WEATHER_FACTOR;
+  let solarWh = 0;
+  for (const s of model.sources) {
+    if (s.kind !== "solar" || s.bankId !== bank.id) continue;
+    solarWh += dayHarvest(s as SolarSource, { ...place, timeZone: model.timeZone }, date, { weatherFactor: wf, ambientC: state?.ambientC ?? 20, bankV: v }).whPerDay;
+  }
+  const eff = bankChargeEfficiency(bank);
+  // Conservative: all solar passes through the battery once (× η) before use.
+  const deficit = effDaily - solarWh * eff;
+  const daysWithTypicalSun = deficit > 0 ? full.usableWh / deficit : null;
+
+  const targetDays = opts.targetDays ?? 3;
+  const requiredUsableWh = effDaily * targetDays;
+  const usableShare = (100 - full.stopSocPct) / 100;
+  const requiredRatedAh = usableShare > 0 ? requiredUsableWh / v / usableShare / ((bank.healthPct ?? 100) / 100) : Number.NaN;
+  return {
+    bankId: bank.id,
+    name: bank.name,
+    usableWh: full.usableWh,
+    dailyDrawWh: daily,
+    effectiveDailyDrawWh: effDaily,
+    daysNoCharge,
+    typicalSolarWhPerDay: solarWh,
+    daysWithTypicalSun,
+    sizing: { targetDays, requiredUsableWh, requiredRatedAh: Number.isFinite(requiredRatedAh) ? requiredRatedAh : 0, currentRatedAh: bank.ratedAh * bank.parallelCount },
+    how: how(
+      "days = usable Wh (full → stop) / (daily draw − η × typical solar); size = daily × target days / V / usable share",
+      { usableWh: r(full.usableWh, 0), dailyWh: r(daily, 0), solarWhPerDay: r(solarWh, 0), weatherFactor: wf, chargeEfficiency: eff, stopSocPct: r(full.stopSocPct, 1) },
+      "Typical sun is the clear-sky harvest on the date × the weather factor; set it from local experience.",
+    ),
+  };
+}
