@@ -104,7 +104,7 @@ export const solarSourceSchema = z.object({
   /** System losses before the controller (PVWatts v5 default 14.08 % when absent). */
   lossesPct: pct.optional(),
   /** Power temperature coefficient, %/°C (typical −0.35 to −0.45). Default −0.37. */
-  tempCoeffPctPerC: z.number().finite().min(-2).max(0).optional(),
+  tempCoeffPctPerC: z.number().finite().min(-1).max(0).optional(),
   /** Controller output limit. */
   maxChargeA: nonNeg.optional(),
 });

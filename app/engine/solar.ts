@@ -230,13 +230,16 @@ export interface IrradianceResult {
 }
 
 /**
- * Plane-of-array irradiance, isotropic sky: POA = DNI·cos θ + DHI·(1 + cos β)/2 + GHI·ρ·(1 − cos β)/2.
- * The clear-sky GHI is scaled by the weather factor (0–1) and split with Erbs.
+ * Plane-of-array irradiance, isotropic sky: POA = DNI·cos θ + DHI·(1 + cos β)/2 + GHI·ρ·(1 − cos β)/2,
+ * from the clear-sky GHI split with Erbs. The weather factor (0–1) then scales every
+ * component: a planning factor on the clear sky, chosen so that more sun can never mean less
+ * power on any panel (splitting a dimmed GHI with Erbs would not guarantee that).
  */
 export function planeOfArrayWm2(sun: SunPosition, dayOfYear: number, tiltDeg: number, azimuthDeg: number, weatherFactor = 1, albedo = 0.2): IrradianceResult {
   if (sun.zenithDeg >= 90) return { ghiWm2: 0, dniWm2: 0, dhiWm2: 0, poaWm2: 0 };
+  const wf = clamp(weatherFactor, 0, 1);
   const cz = Math.cos(sun.zenithDeg * DEG);
-  const ghi = clearSkyGhiWm2(sun.zenithDeg) * clamp(weatherFactor, 0, 1);
+  const ghi = clearSkyGhiWm2(sun.zenithDeg);
   const e0 = extraterrestrialIrradianceWm2(dayOfYear);
   const kt = clamp(ghi / (e0 * Math.max(cz, 0.065)), 0, 1);
   const dhi = ghi * erbsDiffuseFraction(kt);
@@ -244,7 +247,7 @@ export function planeOfArrayWm2(sun: SunPosition, dayOfYear: number, tiltDeg: nu
   const ct = Math.max(0, cosIncidence(sun.zenithDeg, sun.azimuthDeg, tiltDeg, azimuthDeg));
   const cb = Math.cos(tiltDeg * DEG);
   const poa = dni * ct + (dhi * (1 + cb)) / 2 + (ghi * albedo * (1 - cb)) / 2;
-  return { ghiWm2: ghi, dniWm2: dni, dhiWm2: dhi, poaWm2: Math.max(0, poa) };
+  return { ghiWm2: ghi * wf, dniWm2: dni * wf, dhiWm2: dhi * wf, poaWm2: Math.max(0, poa) * wf };
 }
 
 /* ------------------------------------------------------------- array */
