@@ -6,7 +6,7 @@
 import path from "node:path";
 import { fileURLToPath } from "node:url";
 import { afterAll, beforeAll, describe, expect, test } from "vitest";
-import { rigMembers, users } from "~/db/schema";
+import { rigMembers } from "~/db/schema";
 import { createRig } from "~/repos/rigs.server";
 import { createInvite } from "~/repos/members.server";
 import { starterModel } from "~/repos/starter-model";
@@ -47,7 +47,6 @@ beforeAll(async () => {
   ]);
   const { token } = await createInvite(db, { rigId: rig.id, email: invitee.email, role: "guest", invitedBy: owner.id });
   ctx = { rigId: rig.id, inviteToken: token };
-  void users;
 });
 
 function fillPath(pattern: string): string {
