@@ -11,6 +11,7 @@ import {
 import type { Route } from "./+types/root";
 import { AppShell } from "~/components/app-shell";
 import { ServiceWorkerUpdate } from "~/components/sw-update";
+import { QueryProvider } from "~/hooks/query-provider";
 import { nightCookieValue } from "~/lib/night-mode";
 import { getUserAndRefresh } from "~/auth/session.server";
 import { navFor } from "~/components/app-shell";
@@ -61,7 +62,9 @@ export function Layout({ children }: { children: React.ReactNode }) {
 export default function App({ loaderData }: Route.ComponentProps) {
   return (
     <AppShell night={loaderData.night} nav={navFor(loaderData.user !== null)}>
-      <Outlet />
+      <QueryProvider>
+        <Outlet />
+      </QueryProvider>
       <ServiceWorkerUpdate />
     </AppShell>
   );
