@@ -14,6 +14,8 @@ export default [
   // Rigs and who is on them
   route("rigs", "routes/rigs.tsx"),
   route("rigs/:rigId", "routes/rig.tsx"),
+  route("rigs/:rigId/model", "routes/rig.model.tsx"),
+  route("rigs/:rigId/budget", "routes/rig.budget.tsx"),
   route("rigs/:rigId/log", "routes/rig.log.tsx"),
   route("rigs/:rigId/log/import", "routes/rig.log.import.tsx"),
   route("rigs/:rigId/log/:readingId", "routes/rig.log.$readingId.tsx"),

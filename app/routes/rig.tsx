@@ -1,56 +1,66 @@
-import { data, Link } from "react-router";
+import { data, isRouteErrorResponse, Link } from "react-router";
 import type { Route } from "./+types/rig";
 import { requireRigRole } from "~/auth/guards.server";
-import { roleLabel } from "~/auth/roles";
 import { getDb } from "~/db/db.server";
-import { getAsBuilt } from "~/repos/rigs.server";
 import { validateModel } from "~/engine/model";
-import { RigOverview } from "~/components/rig-overview";
-import { lastRigSetCookie } from "~/lib/last-rig";
+import { getAsBuilt } from "~/repos/rigs.server";
+import { getLatestReading, getRigState } from "~/repos/rig-state.server";
+import { NowScreen } from "~/components/now/now-screen";
+import { useModeEdit, useRigModel, useRigState, type RigModelPayload, type RigStatePayload } from "~/hooks/use-rig-now";
 
-/** GET /rigs/:rigId — members only (anyone else: 404). */
+/** The rig's Now screen: any member may look; crew and owners may switch. */
 export async function loader({ request, params }: Route.LoaderArgs) {
-  const { rig, role } = await requireRigRole(request, params.rigId, "guest");
-  const asBuilt = await getAsBuilt(getDb(), rig.id);
+  const db = getDb();
+  const access = await requireRigRole(request, params.rigId, "guest", db);
+  const [asBuilt, state, latestReading] = await Promise.all([
+    getAsBuilt(db, access.rig.id),
+    getRigState(db, access.rig.id),
+    getLatestReading(db, access.rig.id),
+  ]);
   const checked = asBuilt ? validateModel(asBuilt.document) : null;
-  if (!checked?.ok) throw data({ message: "This rig's model could not be read." }, { status: 500 });
-  return data(
-    { rig, role, model: checked.model, revision: asBuilt!.revision },
-    { headers: { "Set-Cookie": lastRigSetCookie(rig.id) } },
-  );
+  if (!asBuilt || !checked?.ok) throw data({ message: "This rig's model could not be read." }, { status: 500 });
+  const model: RigModelPayload = { rigId: access.rig.id, name: access.rig.name, revision: asBuilt.revision, model: checked.model, role: access.role };
+  const shared: RigStatePayload = { state, latestReading, role: access.role };
+  return { model, shared, nowMs: Date.now() };
 }
 
 export function meta({ data }: Route.MetaArgs) {
-  return [{ title: data ? `${data.rig.name} · Tilldawn` : "Tilldawn" }];
+  return [{ title: data ? `${data.model.name} now · Tilldawn` : "Tilldawn" }];
 }
 
-export default function Rig({ loaderData }: Route.ComponentProps) {
-  const { rig, role, model, revision } = loaderData;
+export default function RigNow({ loaderData }: Route.ComponentProps) {
+  const rigId = loaderData.model.rigId;
+  const modelQuery = useRigModel(rigId, loaderData.model);
+  const model = modelQuery.data ?? loaderData.model;
+  const shared = useRigState(rigId, loaderData.shared, model.model);
+  const modeEdit = useModeEdit(rigId);
   return (
-    <div className="space-y-4">
-      <header className="space-y-1">
-        <div className="flex items-center justify-between gap-3">
-          <p className="text-sm font-bold uppercase tracking-widest text-dawn-400">Rig</p>
-          <Link to="/rigs" className="inline-flex min-h-12 items-center text-sm font-bold text-night-300 underline">
-            Switch rig
-          </Link>
-        </div>
-        <h1 className="text-3xl font-bold">{rig.name}</h1>
-        <p className="text-night-300">
-          As built, revision {revision} · You are {roleLabel[role].toLowerCase()}
-        </p>
-      </header>
-      {role === "guest" ? (
-        <p role="note" className="rounded-2xl border border-night-600 bg-night-900 p-4 text-night-200">
-          You follow this rig as a guest: read-only.
-        </p>
-      ) : null}
-      <RigOverview model={model} />
-      <Link
-        to={`/rigs/${rig.id}/members`}
-        className="flex min-h-14 items-center justify-between rounded-2xl border border-night-700 bg-night-900 px-4 font-bold hover:border-dawn-500"
-      >
-        People on this rig <span aria-hidden="true">›</span>
+    <NowScreen
+      rigId={rigId}
+      rigName={model.name}
+      model={model.model}
+      revision={model.revision}
+      state={shared.state}
+      role={shared.role}
+      latestReading={shared.latestReading}
+      initialNowMs={loaderData.nowMs}
+      onChange={shared.change}
+      onModeEdit={(body) => modeEdit.mutateAsync(body)}
+      status={shared.status}
+      notices={shared.notices}
+    />
+  );
+}
+
+export function ErrorBoundary({ error }: Route.ErrorBoundaryProps) {
+  const status = isRouteErrorResponse(error) ? error.status : 500;
+  const message = isRouteErrorResponse(error) ? (typeof error.data === "string" ? error.data : error.data?.message) : null;
+  return (
+    <div role="alert" className="space-y-3 rounded-2xl border border-ember-500 bg-night-900 p-4">
+      <h1 className="text-2xl font-bold">{status === 404 ? "No such rig" : status === 403 ? "Not allowed" : "The Now screen could not load"}</h1>
+      <p className="text-night-200">{message ?? "Something went wrong while loading this rig. Your saved data is safe; try again in a moment."}</p>
+      <Link to="/rigs" className="inline-flex min-h-12 items-center rounded-xl bg-dawn-500 px-4 font-bold text-night-950">
+        Your rigs
       </Link>
     </div>
   );

@@ -1,0 +1,450 @@
+/**
+ * The Now screen: how long the bank lasts at the present plan, and whether it makes it to the
+ * next charge. It computes everything in the browser from the model and state it is HANDED
+ * (props); it never waits on the server to show a number. Changes go out through `onChange`.
+ */
+import { lazy, Suspense, useEffect, useLayoutEffect, useMemo, useRef, useState } from "react";
+import { Link } from "react-router";
+import type { RigModel } from "~/engine/model";
+import { Button } from "~/components/ui/button";
+import { Sheet } from "~/components/ui/sheet";
+import { cn } from "~/lib/cn";
+import type { LatestReading, RigState, SocEntry, StateChange } from "~/schemas/rig-state";
+import { chartSeries, computeNow, loadCost, placeOf, type ChartSeries, type LoadCost, type NowResult } from "./now-model";
+import { ExplainProvider, Explainable, type Explanation } from "./explain";
+import { HorizonBand } from "./horizon-band";
+import { LoadSwitches, StandbyList } from "./load-switches";
+import { ModesBar, type ModeEditBody } from "./modes";
+import { PlaceWeather } from "./place-weather";
+import { SocEntryForm } from "./soc-entry";
+import { formatA, formatAgo, formatClock, formatDuration, formatPct, formatW } from "./format";
+
+const ProjectionChart = lazy(() => import("./projection-chart"));
+
+export type NowRole = "owner" | "crew" | "guest";
+
+export interface NowScreenProps {
+  rigId: string;
+  rigName: string;
+  model: RigModel;
+  revision: number;
+  state: RigState;
+  role: NowRole;
+  latestReading: LatestReading | null;
+  /** Server time when the page was rendered (keeps server and first client render equal). */
+  initialNowMs: number;
+  onChange: (c: StateChange) => void;
+  onModeEdit?: (body: ModeEditBody) => Promise<unknown>;
+  status?: "idle" | "saving" | "offline" | "error";
+  notices?: Array<{ id: number; tone: "info" | "warn" | "error"; text: string }>;
+}
+
+/** A SoC older than this is flagged as stale. */
+const STALE_AFTER_MS = 6 * 3_600_000;
+
+const windowWords = { sun: "sunshine", drive: "a drive", shore: "shore power", generator: "the generator", charger: "a charger" } as const;
+const sourceWords = { entered: "entered by hand", resting_voltage: "estimated from a resting voltage", logbook: "from the logbook" } as const;
+
+export function NowScreen(props: NowScreenProps) {
+  const { model, state, role, rigId } = props;
+  const canWrite = role !== "guest";
+  const [clock, setClock] = useState(() => Math.floor(props.initialNowMs / 60_000) * 60_000);
+  const [pinned, setPinned] = useState<number | null>(null);
+  useEffect(() => {
+    const tick = () => setClock(Math.floor(Date.now() / 60_000) * 60_000);
+    const t = setInterval(tick, 30_000);
+    return () => clearInterval(t);
+  }, []);
+  const atMs = pinned ?? clock;
+
+  const result = useMemo((): { ok: true; now: NowResult } | { ok: false; message: string } => {
+    try {
+      return { ok: true, now: computeNow({ model, state, atMs }) };
+    } catch (error) {
+      return { ok: false, message: error instanceof Error ? error.message : String(error) };
+    }
+  }, [model, state, atMs]);
+
+  if (!result.ok) {
+    return (
+      <div role="alert" className="space-y-2 rounded-2xl border border-ember-500 bg-night-900 p-4">
+        <h1 className="text-2xl font-bold">{props.rigName}</h1>
+        <p>The runway could not be computed from this rig&apos;s model: {result.message}</p>
+        <Link to={`/rigs/${rigId}/model`} className="font-bold text-dawn-300 underline">
+          Look at the rig as built
+        </Link>
+      </div>
+    );
+  }
+  return (
+    <ExplainProvider>
+      <NowBody {...props} now={result.now} atMs={atMs} pinned={pinned} setPinned={setPinned} canWrite={canWrite} />
+    </ExplainProvider>
+  );
+}
+
+function NowBody({
+  rigId,
+  rigName,
+  model,
+  revision,
+  state,
+  role,
+  latestReading,
+  onChange,
+  onModeEdit,
+  status = "idle",
+  notices = [],
+  now,
+  atMs,
+  pinned,
+  setPinned,
+  canWrite,
+}: NowScreenProps & { now: NowResult; atMs: number; pinned: number | null; setPinned: (ms: number | null) => void; canWrite: boolean }) {
+  const [socOpen, setSocOpen] = useState(false);
+  const [hydrated, setHydrated] = useState(false);
+  useEffect(() => setHydrated(true), []);
+  const bank = now.bank;
+  const td = bank.tillDawn;
+  const horizonH = now.projection.horizonH;
+  const tz = model.timeZone;
+
+  // Toggle latency: marked when the new runway is in the DOM (bench: scripts/bench-now.ts).
+  useLayoutEffect(() => {
+    if (typeof performance !== "undefined") performance.mark("now:runway");
+  }, [now]);
+
+  const series: ChartSeries | null = useMemo(() => (hydrated ? chartSeries(model, now) : null), [hydrated, model, now]);
+  const costs = useLoadCosts(model, state, atMs, now, hydrated);
+
+  const soc = state.soc;
+  const socAgeMs = soc ? atMs - Date.parse(soc.takenAt) : null;
+  const stale = socAgeMs !== null && socAgeMs > STALE_AFTER_MS;
+  const place = placeOf(model, state);
+  const mode = model.modes.find((m) => m.id === now.engineState.modeId) ?? model.modes[0]!;
+
+  const change = (c: StateChange) => {
+    performance.mark("now:toggle");
+    onChange(c);
+  };
+
+  const explainRunway = (): Explanation => ({
+    title: "Runway",
+    value: formatDuration(bank.runwayH, horizonH),
+    plain:
+      bank.runwayH === null
+        ? `At this plan the ${now.bankModel.name.toLowerCase()} stays above its usable floor (${formatPct(bank.stopSocPct)}) for the whole ${horizonH} hours the projection looks ahead.`
+        : `Starting from ${formatPct(bank.startSocPct)} the ${now.bankModel.name.toLowerCase()} reaches its usable floor of ${formatPct(bank.stopSocPct)} after ${formatDuration(bank.runwayH)}, counting the loads at their hours in "${mode.name}", standby draws and the sun at ${place.label}, step by step every ${now.projection.stepMin} minutes.`,
+    how: bank.how,
+    source: "Tilldawn's projection; Peukert's law for discharge; clear-sky sun scaled by the weather choice.",
+  });
+  const explainVerdict = (): Explanation => ({
+    title: "Till dawn",
+    value: td.reaches ? "Makes it" : "Falls short",
+    plain: td.nextWindowMs === null ? td.summary : `${verdictSentence(now, tz)} ${td.summary}`,
+    how: td.how,
+  });
+  const explainNet = (): Explanation => ({
+    title: "Right now",
+    value: `${formatW(now.present.netW)} · ${formatA(now.present.netA)}`,
+    plain: `Loads and standby draw ${formatW(now.present.drawW)} from the bank at this moment of the plan; sources give ${formatW(now.present.sourceW)} (solar ${formatW(now.present.solarW)}). The difference, at the bank's ${now.present.bankV} V, is ${formatA(now.present.netA)}.`,
+    inputs: [
+      ["Draw now", formatW(now.present.drawW)],
+      ["Sources now", formatW(now.present.sourceW)],
+      ["Bank voltage (nominal)", `${now.present.bankV} V`],
+    ],
+    source: "The engine's draw profile for this 5-minute slot and its solar model at the rig's place.",
+  });
+  const explainSoc = (): Explanation => ({
+    title: "State of charge",
+    value: formatPct(bank.startSocPct),
+    plain: !soc
+      ? "Nobody has entered the state of charge yet, so the projection assumes a full bank. Enter it for a true runway."
+      : `${formatPct(bank.startSocPct)} ${sourceWords[soc.source]}, read ${formatAgo(Date.parse(soc.takenAt), atMs)} (${formatClock(Date.parse(soc.takenAt), tz)}).${soc.restingV !== undefined ? ` Resting voltage ${soc.restingV} V.` : ""}`,
+    ...(now.socEstimate ? { how: now.socEstimate.how } : {}),
+    inputs: [
+      ["Usable floor", formatPct(bank.stopSocPct)],
+      ["SoC at the low-voltage cutoff", formatPct(now.cutoffSocPct)],
+      ["Confidence", bank.startSocConfidence],
+    ],
+  });
+
+  return (
+    <div className="space-y-6 pb-4">
+      <header className="flex flex-wrap items-end justify-between gap-2">
+        <div>
+          <p className="text-sm font-bold uppercase tracking-widest text-dawn-400">Now</p>
+          <h1 className="text-3xl font-bold">{rigName}</h1>
+        </div>
+        <SyncBadge status={status} role={role} />
+      </header>
+
+      {notices.length ? (
+        <ul className="space-y-2" aria-live="polite">
+          {notices.map((n) => (
+            <li key={n.id} className={cn("rounded-xl border p-3 font-bold", n.tone === "error" ? "border-ember-500 text-ember-300" : n.tone === "warn" ? "border-dawn-600 text-dawn-300" : "border-night-600 text-night-200")}>
+              {n.text}
+            </li>
+          ))}
+        </ul>
+      ) : null}
+
+      <section aria-labelledby="bank-heading" className="space-y-3 rounded-3xl border border-night-700 bg-night-900 p-4">
+        <div className="flex items-baseline justify-between gap-2">
+          <h2 id="bank-heading" className="text-lg font-bold text-night-200">
+            {now.bankModel.name}
+          </h2>
+          <Explainable explanation={explainSoc} className="text-3xl font-bold">
+            <span data-testid="soc">{formatPct(bank.startSocPct)}</span>
+          </Explainable>
+        </div>
+        <HorizonBand socPct={bank.startSocPct} stopSocPct={bank.stopSocPct} lowConfidence={bank.startSocConfidence === "low"} />
+        <div className="flex flex-wrap items-center justify-between gap-2">
+          <p className={cn("text-sm", stale || !soc ? "font-bold text-ember-300" : "text-night-200")}>
+            {!soc
+              ? "No SoC entered yet: a full bank is assumed."
+              : `${sourceWords[soc.source]}, ${formatAgo(Date.parse(soc.takenAt), atMs)}${stale ? " — stale, the bank has been used since" : ""}${now.socEstimate?.flatCurve ? " — low confidence (flat LiFePO4 curve)" : ""}`}
+          </p>
+          {canWrite ? (
+            <Button variant={!soc || stale ? "primary" : "quiet"} onClick={() => setSocOpen(true)}>
+              Update SoC
+            </Button>
+          ) : null}
+        </div>
+
+        <div className="border-t border-night-700 pt-3">
+          <p className="text-sm font-bold uppercase tracking-wider text-night-300">Runway</p>
+          <p aria-live="polite" aria-atomic="true" className="text-5xl font-bold leading-tight">
+            <Explainable explanation={explainRunway}>
+              <span data-testid="runway">{formatDuration(bank.runwayH, horizonH)}</span>
+            </Explainable>
+          </p>
+          <p className="text-night-200">to the usable floor ({formatPct(bank.stopSocPct)}) at the present plan</p>
+        </div>
+
+        <div className={cn("rounded-2xl border p-3", td.reaches ? "border-leaf-400" : "border-ember-500")}>
+          <Explainable explanation={explainVerdict} className="block w-full no-underline">
+            <span className={cn("block text-xl font-bold", td.reaches ? "text-leaf-400" : "text-ember-500")} data-testid="verdict">
+              {td.reaches ? "Makes it till dawn" : "Falls short of the next charge"}
+            </span>
+            <span className="block text-night-100">{verdictSentence(now, tz)}</span>
+          </Explainable>
+        </div>
+
+        <dl className="grid grid-cols-2 gap-3 md:grid-cols-3">
+          <div>
+            <dt className="text-sm text-night-300">{now.present.netW >= 0 ? "Charging now" : "Drawing now"}</dt>
+            <dd className="text-lg font-bold">
+              <Explainable explanation={explainNet}>
+                <span data-testid="net">
+                  {formatW(Math.abs(now.present.netW))} · {formatA(Math.abs(now.present.netA))}
+                </span>
+              </Explainable>
+            </dd>
+          </div>
+          <div>
+            <dt className="text-sm text-night-300">Next charge</dt>
+            <dd className="text-lg font-bold">
+              <Explainable explanation={explainVerdict}>
+                {td.chargingNow ? "now" : td.nextWindowMs === null ? `none in ${horizonH} h` : `${formatClock(td.nextWindowMs, tz)}, ${windowWords[td.nextWindowKind ?? "sun"]}`}
+              </Explainable>
+            </dd>
+          </div>
+          <div>
+            <dt className="text-sm text-night-300">SoC at sunrise</dt>
+            <dd className="text-lg font-bold">
+              <Explainable
+                explanation={{
+                  title: "SoC at sunrise",
+                  value: bank.socAtNextSunrisePct === null ? "—" : formatPct(bank.socAtNextSunrisePct),
+                  plain:
+                    now.projection.nextSunriseMs === null
+                      ? "The sun does not rise within the projection at this place."
+                      : `The projection's state of charge at the next sunrise, ${formatClock(now.projection.nextSunriseMs, tz)} at ${place.label}.`,
+                  how: bank.how,
+                }}
+              >
+                {bank.socAtNextSunrisePct === null ? "—" : formatPct(bank.socAtNextSunrisePct)}
+              </Explainable>
+            </dd>
+          </div>
+        </dl>
+      </section>
+
+      <ModesBar
+        model={model}
+        modeId={mode.id}
+        canWrite={canWrite}
+        isOwner={role === "owner"}
+        loadsOn={now.engineState.loadsOn ?? []}
+        inverterIdsOn={mode.inverterIdsOn}
+        revision={revision}
+        onChange={change}
+        {...(onModeEdit ? { onModeEdit } : {})}
+      />
+
+      <LoadSwitches model={model} state={state} now={now} costs={costs} canWrite={canWrite} onChange={change} />
+
+      <StandbyList items={now.projection.budget.standby} />
+
+      <section aria-labelledby="chart-heading" className="space-y-2 rounded-2xl border border-night-700 bg-night-900 p-3">
+        <h2 id="chart-heading" className="text-xl font-bold">
+          Next {horizonH} hours
+        </h2>
+        <ChartKey />
+        {hydrated && series ? (
+          <Suspense fallback={<div className="h-[264px] animate-pulse rounded-xl bg-night-800" />}>
+            <ProjectionChart series={series} timeZone={tz} />
+          </Suspense>
+        ) : (
+          <div className="h-[264px] rounded-xl bg-night-800" />
+        )}
+        {series ? <ProjectionTable series={series} timeZone={tz} /> : null}
+      </section>
+
+      <PlaceWeather model={model} state={state} canWrite={canWrite} onChange={change} atMs={atMs} pinnedAtMs={pinned} onPinTime={setPinned} />
+
+      <nav aria-label="More about this rig" className="grid grid-cols-2 gap-2">
+        <Link to={`/rigs/${rigId}/budget`} className="flex min-h-14 items-center justify-center rounded-2xl border border-night-600 font-bold hover:border-dawn-500">
+          Day budget
+        </Link>
+        <Link to={`/rigs/${rigId}/model`} className="flex min-h-14 items-center justify-center rounded-2xl border border-night-600 font-bold hover:border-dawn-500">
+          Rig as built
+        </Link>
+      </nav>
+
+      <p className="text-sm text-night-300">
+        A planning aid, not a safety device: the bank&apos;s BMS or low-voltage disconnect protects it. Lithium batteries, wiring and shore power can hurt people and start fires; follow local codes and licensed practice.
+      </p>
+
+      <Sheet open={socOpen} onClose={() => setSocOpen(false)} title="State of charge">
+        {socOpen ? (
+          <SocEntryForm
+            bank={now.bankModel}
+            timeZone={tz}
+            nowMs={Date.now()}
+            latestReading={latestReading}
+            onCancel={() => setSocOpen(false)}
+            onSave={(s: SocEntry) => {
+              setSocOpen(false);
+              change({ kind: "soc", soc: s });
+            }}
+          />
+        ) : null}
+      </Sheet>
+    </div>
+  );
+}
+
+function verdictSentence(now: NowResult, tz: string): string {
+  const td = now.bank.tillDawn;
+  if (td.chargingNow) return "Charging now: sources give more than the loads draw.";
+  if (td.nextWindowMs === null) {
+    return now.bank.runwayH === null
+      ? `No charge expected in ${now.projection.horizonH} h, and the bank stays above its floor.`
+      : `No charge expected in ${now.projection.horizonH} h; the floor comes in ${formatDuration(now.bank.runwayH)}.`;
+  }
+  const when = formatClock(td.nextWindowMs, tz);
+  const what = windowWords[td.nextWindowKind ?? "sun"];
+  if (td.reaches) {
+    const spare = td.marginSocPct === null ? "" : ` with ${formatPct(td.marginSocPct)} above the floor`;
+    const margin = td.marginH === null ? "" : ` and ${formatDuration(td.marginH)} to spare`;
+    return `Reaches ${what} at ${when}${spare}${margin}.`;
+  }
+  return `Reaches the floor ${formatDuration(Math.abs(td.marginH ?? 0))} before ${what} at ${when}.`;
+}
+
+function SyncBadge({ status, role }: { status: "idle" | "saving" | "offline" | "error"; role: NowRole }) {
+  const text = role === "guest" ? "Read-only (guest)" : { idle: "Saved", saving: "Saving…", offline: "Offline", error: "Not synced" }[status];
+  return (
+    <p role="status" className={cn("rounded-full px-3 py-1 text-sm font-bold", status === "error" || status === "offline" ? "bg-night-800 text-ember-300" : "bg-night-800 text-night-200")} data-testid="sync-status">
+      {text}
+    </p>
+  );
+}
+
+function ChartKey() {
+  const item = (cls: string, label: string) => (
+    <span className="flex items-center gap-1">
+      <span aria-hidden="true" className={cn("inline-block h-1 w-5 rounded", cls)} />
+      {label}
+    </span>
+  );
+  return (
+    <p className="flex flex-wrap gap-x-4 gap-y-1 text-sm text-night-200">
+      {item("bg-dawn-400", "SoC %")}
+      {item("bg-leaf-400", "Charge W")}
+      {item("bg-ember-300", "Draw W")}
+      {item("bg-ember-500", "Floor")}
+      {item("bg-night-700", "Night")}
+    </p>
+  );
+}
+
+function ProjectionTable({ series, timeZone }: { series: ChartSeries; timeZone: string }) {
+  const rows: number[] = [];
+  const everyH = 3;
+  const stride = Math.max(1, Math.round((everyH * 3600) / ((series.t[1] ?? 0) - (series.t[0] ?? 0) || 900)));
+  for (let i = 0; i < series.t.length; i += stride) rows.push(i);
+  return (
+    <details>
+      <summary className="flex min-h-12 cursor-pointer items-center font-bold text-dawn-300">Show the projection as a table</summary>
+      <table className="tabular w-full text-left text-sm">
+        <caption className="sr-only">Projected state of charge, charge and draw every {everyH} hours</caption>
+        <thead>
+          <tr className="text-night-300">
+            <th scope="col" className="py-1">
+              Time
+            </th>
+            <th scope="col">SoC</th>
+            <th scope="col">Charge</th>
+            <th scope="col">Draw</th>
+          </tr>
+        </thead>
+        <tbody>
+          {rows.map((i) => (
+            <tr key={i} className="border-t border-night-800">
+              <th scope="row" className="py-1 font-normal">
+                {formatClock(series.t[i]! * 1000, timeZone)}
+              </th>
+              <td>{formatPct(series.socPct[i]!)}</td>
+              <td>{formatW(series.solarW[i]!)}</td>
+              <td>{formatW(series.drawW[i]!)}</td>
+            </tr>
+          ))}
+        </tbody>
+      </table>
+    </details>
+  );
+}
+
+/** Per-load runway costs, computed off the main path one load at a time after each change. */
+function useLoadCosts(model: RigModel, state: RigState, atMs: number, now: NowResult, enabled: boolean): Map<string, LoadCost> {
+  const [costs, setCosts] = useState<Map<string, LoadCost>>(new Map());
+  const latest = useRef({ model, state, atMs, now });
+  latest.current = { model, state, atMs, now };
+  useEffect(() => {
+    if (!enabled) return;
+    let cancelled = false;
+    const out = new Map<string, LoadCost>();
+    let i = 0;
+    let timer: ReturnType<typeof setTimeout>;
+    const step = () => {
+      if (cancelled) return;
+      const { model: m, state: s, atMs: a, now: n } = latest.current;
+      const load = m.loads[i++];
+      if (!load) {
+        setCosts(out);
+        return;
+      }
+      out.set(load.id, loadCost(m, s, a, load.id, n));
+      timer = setTimeout(step, 0);
+    };
+    timer = setTimeout(step, 60);
+    return () => {
+      cancelled = true;
+      clearTimeout(timer);
+    };
+  }, [now, enabled]);
+  return costs;
+}

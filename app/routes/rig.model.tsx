@@ -1,0 +1,39 @@
+import { data } from "react-router";
+import { Link } from "react-router";
+import type { Route } from "./+types/rig.model";
+import { requireRigRole } from "~/auth/guards.server";
+import { getDb } from "~/db/db.server";
+import { getAsBuilt } from "~/repos/rigs.server";
+import { validateModel } from "~/engine/model";
+import { RigOverview } from "~/components/rig-overview";
+
+/** The rig as built: its banks and loads (the former rig overview). */
+export async function loader({ request, params }: Route.LoaderArgs) {
+  const db = getDb();
+  const access = await requireRigRole(request, params.rigId, "guest", db);
+  const asBuilt = await getAsBuilt(db, access.rig.id);
+  const checked = asBuilt ? validateModel(asBuilt.document) : null;
+  if (!checked?.ok) throw data({ message: "This rig's model could not be read." }, { status: 500 });
+  return { rig: access.rig, model: checked.model, revision: asBuilt!.revision };
+}
+
+export function meta({ data }: Route.MetaArgs) {
+  return [{ title: data ? `${data.rig.name} as built · Tilldawn` : "Tilldawn" }];
+}
+
+export default function RigModelPage({ loaderData }: Route.ComponentProps) {
+  const { rig, model, revision } = loaderData;
+  return (
+    <div className="space-y-4">
+      <header>
+        <p className="text-sm font-bold uppercase tracking-widest text-dawn-400">Rig</p>
+        <h1 className="text-3xl font-bold">{rig.name}</h1>
+        <p className="text-night-300">As built, revision {revision}</p>
+      </header>
+      <RigOverview model={model} />
+      <Link to={`/rigs/${rig.id}`} className="inline-flex min-h-12 items-center rounded-xl border border-night-600 px-4 font-bold">
+        Back to Now
+      </Link>
+    </div>
+  );
+}
