@@ -1,8 +1,8 @@
-import { readFileSync } from "node:fs";
 import { describe, expect, it } from "vitest";
+import requestFixture from "../../tests/fixtures/projection-request.json";
 import { handleProjectionRequest, parseProjectionRequest, projectionRequestJsonSchema, runProjectionRequest } from "./api";
 
-const body = JSON.parse(readFileSync(new URL("../../tests/fixtures/projection-request.json", import.meta.url), "utf8")) as Record<string, unknown>;
+const body = structuredClone(requestFixture) as Record<string, unknown>;
 
 describe("POST /api/v1/projection contract", () => {
   it("answers the fixture request with projection, budget, audit and circuit graph", () => {

@@ -6,7 +6,7 @@ import type { CircuitGraph } from "./circuit-graph";
 import { bankCapacityAh, bankChargeEfficiency, bankNominalV, bankPeukertExponent, bankRatedHourRateH, peukertEffectiveCurrentA, usableEnergy } from "./battery";
 import type { Budget } from "./draw";
 import { how, r, type How } from "./explain";
-import { dayHarvest } from "./solar";
+import { harvestArrays } from "./solar";
 import type { CurrentState } from "./state";
 
 /** Share of clear-sky harvest assumed for "typical" sun when the caller gives none (an
@@ -48,10 +48,11 @@ export function autonomy(
   const place = state?.location ?? model.home;
   const date = (state?.dateTime ?? new Date().toISOString()).slice(0, 10);
   const wf = opts.typicalWeatherFactor ?? state?.weatherFactor ?? TYPICAL_WEATHER_FACTOR;
+  const arrays = model.sources.filter((s): s is SolarSource => s.kind === "solar" && s.bankId === bank.id);
   let solarWh = 0;
-  for (const s of model.sources) {
-    if (s.kind !== "solar" || s.bankId !== bank.id) continue;
-    solarWh += dayHarvest(s as SolarSource, { ...place, timeZone: model.timeZone }, date, { weatherFactor: wf, ambientC: state?.ambientC ?? 20, bankV: v }).whPerDay;
+  if (arrays.length) {
+    const h = harvestArrays(arrays, { ...place, timeZone: model.timeZone }, date, { weatherFactor: wf, ambientC: state?.ambientC ?? 20, bankV: v });
+    for (const row of h.hourlyWh) for (const wh of row) solarWh += wh;
   }
   const eff = bankChargeEfficiency(bank);
   // Conservative: all solar passes through the battery once (× η) before use.

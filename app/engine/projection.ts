@@ -221,7 +221,7 @@ export function runProjection(model: RigModel, graph: CircuitGraph, state: Curre
         const bi = bankIndex.get(src.bankId)!;
         const irr = planeOfArrayWm2(sun, doy, src.tiltDeg, src.azimuthDeg, weather);
         const w = arrayOutputW(src, irr.poaWm2, ambientC, V[bi]!).outW;
-        srcW[bi] += w;
+        srcW[bi] = srcW[bi]! + w;
         if (w > 0) kindAtStep[bi] = "sun";
       }
     }
@@ -229,11 +229,11 @@ export function runProjection(model: RigModel, graph: CircuitGraph, state: Curre
       if (!sourceActive(src, modeSources, hour)) continue;
       const bi = bankIndex.get(src.bankId)!;
       const w = src.ratedA * V[bi]!;
-      srcW[bi] += w;
+      srcW[bi] = srcW[bi]! + w;
       kindAtStep[bi] = kindOfWindow(src.kind);
       if (src.kind === "charger" && src.supplyBankId !== undefined) {
         const si = bankIndex.get(src.supplyBankId);
-        if (si !== undefined) supplyDrawW[si] += w / ((src.efficiencyPct ?? 90) / 100);
+        if (si !== undefined) supplyDrawW[si] = supplyDrawW[si]! + w / ((src.efficiencyPct ?? 90) / 100);
       }
     }
 

@@ -401,6 +401,43 @@ export interface DayHarvest {
   how: How;
 }
 
+/**
+ * Daily harvest of several arrays for a local date, 5-minute integration; the sun's
+ * coordinates are computed hourly and interpolated (error < 1e-5°), its horizon position per
+ * step. Returns Wh per source and the plane-of-array Wh/m² of each, by local hour.
+ */
+export function harvestArrays(
+  srcs: SolarSource[],
+  place: { latDeg: number; lonDeg: number; elevationM?: number; timeZone: string },
+  date: string,
+  opts: { weatherFactor?: number; ambientC?: number; bankV: number },
+): { start: number; end: number; hourlyWh: number[][]; hourlyPoa: number[][] } {
+  const start = localMidnightMs(date, place.timeZone);
+  const end = localMidnightMs(nextDate(date), place.timeZone);
+  const stepMs = 5 * 60000;
+  const hourlyWh = srcs.map(() => new Array<number>(24).fill(0));
+  const hourlyPoa = srcs.map(() => new Array<number>(24).fill(0));
+  const doy = dayOfYear(start + 12 * 3600000);
+  const off = utcOffsetMinutes(start + 12 * 3600000, place.timeZone);
+  const coords: SunCoordinates[] = [];
+  const coordsAt = (h: number) => (coords[h] ??= sunCoordinates(start + h * 3600000));
+  const sunOpts = { elevationM: place.elevationM ?? 0 };
+  for (let t = start; t < end; t += stepMs) {
+    const mid = t + stepMs / 2;
+    const hIdx = Math.floor((mid - start) / 3600000);
+    const sun = sunHorizontal(interpolateSunCoordinates(coordsAt(hIdx), coordsAt(hIdx + 1), (mid - start) / 3600000 - hIdx), mid, place.latDeg, place.lonDeg, sunOpts);
+    if (sun.zenithDeg >= 90) continue;
+    const hour = Math.floor(((((mid + off * 60000) / 3600000) % 24) + 24) % 24);
+    srcs.forEach((src, i) => {
+      const irr = planeOfArrayWm2(sun, doy, src.tiltDeg, src.azimuthDeg, opts.weatherFactor ?? 1);
+      const out = arrayOutputW(src, irr.poaWm2, opts.ambientC ?? 20, opts.bankV);
+      hourlyWh[i]![hour]! += out.outW / 12;
+      hourlyPoa[i]![hour]! += irr.poaWm2 / 12;
+    });
+  }
+  return { start, end, hourlyWh, hourlyPoa };
+}
+
 /** Hourly and daily harvest of one array for a local date, 5-minute integration. */
 export function dayHarvest(
   src: SolarSource,
@@ -408,25 +445,11 @@ export function dayHarvest(
   date: string,
   opts: { weatherFactor?: number; ambientC?: number; bankV: number },
 ): DayHarvest {
-  const start = localMidnightMs(date, place.timeZone);
-  const end = localMidnightMs(nextDate(date), place.timeZone);
-  const stepMs = 5 * 60000;
-  const hourly = Array.from({ length: 24 }, (_, hour) => ({ hour, wh: 0, poaWhM2: 0 }));
-  const doy = dayOfYear(start + 12 * 3600000);
-  const off = utcOffsetMinutes(start + 12 * 3600000, place.timeZone);
-  for (let t = start; t < end; t += stepMs) {
-    const mid = t + stepMs / 2;
-    const sun = sunPosition(mid, place.latDeg, place.lonDeg, { elevationM: place.elevationM ?? 0 });
-    const irr = planeOfArrayWm2(sun, doy, src.tiltDeg, src.azimuthDeg, opts.weatherFactor ?? 1);
-    const out = arrayOutputW(src, irr.poaWm2, opts.ambientC ?? 20, opts.bankV);
-    const hour = Math.floor(((((mid + off * 60000) / 3600000) % 24) + 24) % 24);
-    const slot = hourly[hour]!;
-    slot.wh += out.outW / 12;
-    slot.poaWhM2 += irr.poaWm2 / 12;
-  }
-  const whPerDay = hourly.reduce((s, h) => s + h.wh, 0);
-  const poaWhM2 = hourly.reduce((s, h) => s + h.poaWhM2, 0);
-  const ev = sunEvents(start, end, place.latDeg, place.lonDeg);
+  const h = harvestArrays([src], place, date, opts);
+  const hourly = h.hourlyWh[0]!.map((wh, hour) => ({ hour, wh, poaWhM2: h.hourlyPoa[0]![hour]! }));
+  const whPerDay = hourly.reduce((s, x) => s + x.wh, 0);
+  const poaWhM2 = hourly.reduce((s, x) => s + x.poaWhM2, 0);
+  const ev = sunEvents(h.start, h.end, place.latDeg, place.lonDeg);
   return {
     date,
     hourly,

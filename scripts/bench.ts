@@ -1,0 +1,120 @@
+/**
+ * `npm run bench`: benchmark sections, each a named list of measurements with targets.
+ * Add a section by appending to `sections`.
+ */
+import { build } from "esbuild";
+import { gzipSync } from "node:zlib";
+import { fileURLToPath } from "node:url";
+import { largeRig, LARGE_RIG_COUNTS } from "../tests/fixtures/large-rig";
+import {
+  buildCircuitGraph, parseProjectionRequest, runAudit, runProjection, runProjectionRequest, validateModel,
+  type CurrentState, type RigModel,
+} from "../app/engine/index";
+
+interface Row {
+  name: string;
+  median: number;
+  p95?: number;
+  unit: string;
+  target: number;
+}
+interface Section {
+  name: string;
+  run: () => Promise<Row[]> | Row[];
+}
+
+function timeIt(fn: () => unknown, opts: { warmup?: number; runs?: number } = {}): { median: number; p95: number } {
+  const warmup = opts.warmup ?? 30;
+  const runs = opts.runs ?? 200;
+  for (let i = 0; i < warmup; i++) fn();
+  const samples: number[] = [];
+  for (let i = 0; i < runs; i++) {
+    const t0 = performance.now();
+    fn();
+    samples.push(performance.now() - t0);
+  }
+  samples.sort((a, b) => a - b);
+  return { median: samples[Math.floor(runs / 2)]!, p95: samples[Math.floor(runs * 0.95)]! };
+}
+
+function engineSections(): Section[] {
+  const v = validateModel(largeRig());
+  if (!v.ok) throw new Error(`large rig is invalid: ${JSON.stringify(v.issues.slice(0, 3))}`);
+  const model: RigModel = v.model;
+  const counts = { banks: model.banks.length, sources: model.sources.length, loads: model.loads.length, circuits: model.circuits.length };
+  if (JSON.stringify(counts) !== JSON.stringify(LARGE_RIG_COUNTS)) throw new Error(`large rig counts ${JSON.stringify(counts)}`);
+  const state: CurrentState = {
+    dateTime: "2026-10-15T19:30:00-06:00",
+    modeId: "m-parked",
+    banks: [{ bankId: "house", socPct: 70 }, { bankId: "aux", restingV: 25.0 }, { bankId: "starter", socPct: 90 }],
+    weatherFactor: 0.8,
+  };
+  const graph = buildCircuitGraph(model);
+  const parsed = parseProjectionRequest({ model, state });
+  if (!parsed.ok) throw new Error(JSON.stringify(parsed.issues.slice(0, 3)));
+  let toggle = 0;
+  return [
+    {
+      name: `Engine on a large rig (${counts.banks} banks, ${counts.sources} sources, ${counts.loads} loads, ${counts.circuits} circuits)`,
+      run: () => {
+        const proj = timeIt(() => runProjection(model, graph, state));
+        const audit = timeIt(() => runAudit(model, buildCircuitGraph(model)));
+        // One tap: a load switched on or off → the graph, projection, budget, audit and autonomy again.
+        const tap = timeIt(() => {
+          toggle++;
+          const loadsOn = model.modes[0]!.loads.map((l) => l.loadId).filter((_, i) => i !== toggle % 40);
+          runProjectionRequest({ ...parsed.value, state: { ...state, loadsOn } });
+        });
+        const validate = timeIt(() => validateModel(model));
+        return [
+          { name: "72-h projection, 5-min steps", ...proj, unit: "ms", target: 2 },
+          { name: "full audit + circuit graph", ...audit, unit: "ms", target: 2 },
+          { name: "all results for one toggle", ...tap, unit: "ms", target: 4 },
+          { name: "model validation (zod + references)", ...validate, unit: "ms", target: Number.NaN },
+        ];
+      },
+    },
+    {
+      name: "Engine bundle for the browser (esbuild, minified, gzip)",
+      run: async () => {
+        const entry = fileURLToPath(new URL("../app/engine/index.ts", import.meta.url));
+        const size = async (external: string[]) => {
+          const out = await build({ entryPoints: [entry], bundle: true, minify: true, format: "esm", platform: "browser", target: "es2022", write: false, external, treeShaking: true });
+          const code = out.outputFiles[0]!.contents;
+          return { raw: code.byteLength / 1024, gz: gzipSync(code, { level: 9 }).byteLength / 1024 };
+        };
+        const own = await size(["zod"]);
+        const withZod = await size([]);
+        return [
+          { name: "engine alone (zod shared with the app), gzip", median: own.gz, unit: "KB", target: 30 },
+          { name: "engine alone, minified", median: own.raw, unit: "KB", target: Number.NaN },
+          { name: "engine + zod, gzip (for reference)", median: withZod.gz, unit: "KB", target: Number.NaN },
+        ];
+      },
+    },
+  ];
+}
+
+const sections: Section[] = [...engineSections()];
+
+function fmt(x: number | undefined): string {
+  return x === undefined || Number.isNaN(x) ? "—" : x.toFixed(x < 10 ? 3 : 1);
+}
+
+async function main(): Promise<void> {
+  let failed = 0;
+  for (const section of sections) {
+    const rows = await section.run();
+    console.log(`\n## ${section.name}\n`);
+    console.log("| measure | median | p95 | unit | target | ok |");
+    console.log("|---|---:|---:|---|---:|---|");
+    for (const r of rows) {
+      const ok = Number.isNaN(r.target) ? "" : r.median < r.target ? "yes" : "NO";
+      if (ok === "NO") failed++;
+      console.log(`| ${r.name} | ${fmt(r.median)} | ${fmt(r.p95)} | ${r.unit} | ${Number.isNaN(r.target) ? "—" : `< ${r.target}`} | ${ok} |`);
+    }
+  }
+  console.log(failed ? `\n${failed} measure(s) above target.` : "\nAll measures within target.");
+}
+
+await main();
