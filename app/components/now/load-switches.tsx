@@ -8,7 +8,7 @@ import { cn } from "~/lib/cn";
 import { blockedSteps, type LoadCost, type NowResult } from "./now-model";
 import { Explainable } from "./explain";
 import { formatDelta, formatDuration, formatW, formatWh } from "./format";
-import type { RigState, StateChange } from "~/schemas/rig-state";
+import { effectiveLoadsOn, type RigState, type StateChange } from "~/schemas/rig-state";
 
 interface Group {
   busId: string;
@@ -51,7 +51,7 @@ export function LoadSwitches({
 }) {
   const [offer, setOffer] = useState<{ loadId: string; steps: SwitchStep[] } | null>(null);
   const onSet = new Set(now.engineState.loadsOn ?? []);
-  const wanted = (id: string) => state.switches[id] ?? onSet.has(id) ?? false;
+  const wantedSet = effectiveLoadsOn(model, now.engineState.modeId, state.switches);
   const budgetById = new Map<string, LoadBudget>(now.projection.budget.loads.map((l) => [l.loadId, l]));
   const groups = groupLoadsByBus(model, now);
 
@@ -78,7 +78,7 @@ export function LoadSwitches({
             {g.loads.map((load) => {
               const b = budgetById.get(load.id);
               const lg = now.graph.loads[load.id];
-              const isWanted = state.switches[load.id] ?? onSet.has(load.id);
+              const isWanted = wantedSet.has(load.id);
               const blocked = blockedSteps(lg, state.positions);
               const running = onSet.has(load.id);
               const cost = costs.get(load.id);
@@ -162,7 +162,7 @@ export function LoadSwitches({
           </ul>
         </div>
       ))}
-      <p className="sr-only">{model.loads.filter((l) => wanted(l.id)).length} loads switched on.</p>
+      <p className="sr-only">{onSet.size} loads running.</p>
     </section>
   );
 }
