@@ -88,6 +88,17 @@ describe("ampacity and protection", () => {
     expect(a6).toBeLessThan(80);
   });
 
+  it("reads NEC 310.16 copper at 60/75/90 °C (2023 edition, secondary)", () => {
+    const rows = [["14", 15, 20, 25], ["12", 20, 25, 30], ["10", 30, 35, 40], ["8", 40, 50, 55], ["6", 55, 65, 75], ["4", 70, 85, 95], ["2", 95, 115, 130]] as const;
+    for (const [size, a60, a75, a90] of rows) {
+      expect(ampacityA(awg(size), 60, false, "nec").ampacityA).toBe(a60);
+      expect(ampacityA(awg(size), 75, false, "nec").ampacityA).toBe(a75);
+      expect(ampacityA(awg(size), 90, false, "nec").ampacityA).toBe(a90);
+    }
+    // Ratings above 90 °C fall back to the 90 °C column.
+    expect(ampacityA(awg("10"), 105, false, "nec").ampacityA).toBe(40);
+  });
+
   it("NEC 210.20(A): a 16 A continuous load needs at least a 20 A device", () => {
     const c = checkProtection(20, 16, 0, awg("12"), 45);
     expect(c.requiredMinA).toBe(20);

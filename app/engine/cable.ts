@@ -150,15 +150,33 @@ export const CFR183_AMPACITY: Partial<Record<AwgSize, readonly [number, number, 
 /** Engine-space multipliers by insulation rating (note to the same table; memory). */
 export const ENGINE_SPACE_FACTOR: Record<TempRatingC, number> = { 60: 0.58, 75: 0.75, 80: 0.78, 90: 0.82, 105: 0.86, 125: 0.89, 200: 1 };
 
+/**
+ * NFPA 70 (NEC) Table 310.16, copper, not more than three current-carrying conductors in a
+ * raceway or cable, 30 °C ambient, columns 60/75/90 °C (2023 edition). Rows 14–2 AWG
+ * secondary (REFERENCES.md); 18, 16, 3, 1 and 1/0–4/0 from memory of the table (18 and 16
+ * are listed only at 90 °C; their 90 °C value is used for every column here).
+ */
+export const NEC310_16_AMPACITY: Partial<Record<AwgSize, readonly [number, number, number]>> = {
+  "18": [14, 14, 14], "16": [18, 18, 18],
+  "14": [15, 20, 25], "12": [20, 25, 30], "10": [30, 35, 40], "8": [40, 50, 55], "6": [55, 65, 75],
+  "4": [70, 85, 95], "3": [85, 100, 115], "2": [95, 115, 130], "1": [110, 130, 145],
+  "1/0": [125, 150, 170], "2/0": [145, 175, 195], "3/0": [165, 200, 225], "4/0": [195, 230, 260],
+};
+
+/** Which ampacity table: boats (33 CFR 183.425, also common practice in vans) or NEC 310.16. */
+export type AmpacityStandard = "boat" | "nec";
+
 /** Ampacity of a conductor by size and insulation rating; mm² and unlisted AWG sizes by
  * log-log interpolation on conductor area between the listed AWG rows. */
-export function ampacityA(size: CableSize, tempRatingC: TempRatingC, engineSpace: boolean): { ampacityA: number; how: How } {
-  const col = TEMP_RATINGS.indexOf(tempRatingC);
-  const rows = (Object.entries(CFR183_AMPACITY) as [AwgSize, readonly number[]][])
+export function ampacityA(size: CableSize, tempRatingC: TempRatingC, engineSpace: boolean, standard: AmpacityStandard = "boat"): { ampacityA: number; how: How } {
+  const table: Partial<Record<AwgSize, readonly number[]>> = standard === "nec" ? NEC310_16_AMPACITY : CFR183_AMPACITY;
+  // NEC 310.16 has 60/75/90 °C columns; higher ratings use the 90 °C column.
+  const col = standard === "nec" ? (tempRatingC <= 60 ? 0 : tempRatingC <= 75 ? 1 : 2) : TEMP_RATINGS.indexOf(tempRatingC);
+  const rows = (Object.entries(table) as [AwgSize, readonly number[]][])
     .map(([awg, amps]) => [awgAreaMm2(awg), amps[col]!] as const)
     .sort((a, b) => a[0] - b[0]);
   let base: number;
-  const listed = size.unit === "awg" ? CFR183_AMPACITY[size.awg] : undefined;
+  const listed = size.unit === "awg" ? table[size.awg] : undefined;
   if (listed) base = listed[col]!;
   else {
     const area = cableAreaMm2(size);
@@ -179,8 +197,10 @@ export function ampacityA(size: CableSize, tempRatingC: TempRatingC, engineSpace
     ampacityA: base * factor,
     how: how(
       "ampacity = table(size, insulation °C) × engine-space factor",
-      { size: cableLabel(size), insulationC: tempRatingC, engineSpace, factor },
-      "33 CFR 183.425 Table 5 (boats, single conductor, free air); metric sizes interpolated on area.",
+      { size: cableLabel(size), insulationC: tempRatingC, engineSpace, factor, standard },
+      standard === "nec"
+        ? "NFPA 70 Table 310.16 (copper, ≤ 3 conductors, 30 °C ambient); metric sizes interpolated on area."
+        : "33 CFR 183.425 Table 5 (boats, single conductor; ABYC-style tables are common practice in vans too); metric sizes interpolated on area.",
     ),
   };
 }
@@ -236,7 +256,7 @@ export interface CableSuggestion {
  */
 export function suggestCable(input: {
   currentA: number; lengthM: number; nominalV: number; criticality: "critical" | "normal";
-  continuous: boolean; tempRatingC?: TempRatingC; engineSpace?: boolean; unit?: "awg" | "mm2";
+  continuous: boolean; tempRatingC?: TempRatingC; engineSpace?: boolean; unit?: "awg" | "mm2"; standard?: AmpacityStandard;
 }): CableSuggestion | null {
   const t = input.tempRatingC ?? 105;
   const need = input.continuous ? 1.25 * input.currentA : input.currentA;
@@ -245,7 +265,7 @@ export function suggestCable(input: {
     : METRIC_SIZES_MM2.map((mm2) => ({ unit: "mm2", mm2 }) as const);
   for (const size of sizes) {
     const vd = voltageDrop(size, input.lengthM, input.currentA, input.nominalV, input.criticality);
-    const amp = ampacityA(size, t, input.engineSpace ?? false).ampacityA;
+    const amp = ampacityA(size, t, input.engineSpace ?? false, input.standard ?? "boat").ampacityA;
     if (!vd.ok || amp < need) continue;
     const small = size.unit === "awg" ? NEC_240_4_D[size.awg] : undefined;
     const maxFuse = Math.min(amp, small ?? Number.POSITIVE_INFINITY);
