@@ -7,6 +7,7 @@ import { z } from "zod";
 import { runAudit, type Audit } from "./audit";
 import { autonomy, type Autonomy } from "./autonomy";
 import { buildCircuitGraph, type SwitchStep } from "./circuit-graph";
+import type { How } from "./explain";
 import type { Budget } from "./draw";
 import { rigModelSchema, validateModel, type ModelIssue, type RigModel } from "./model";
 import { runProjection, type BankProjection } from "./projection";
@@ -39,6 +40,7 @@ export interface LoadGraphSummary {
   outsideLowVoltageProtection: boolean;
   drainsBankIds: string[];
   forcesStandby: { kind: string; id: string; name: string; w: number }[];
+  how: How;
 }
 
 export interface ProjectionResult {
@@ -127,6 +129,7 @@ export function runProjectionRequest(req: ProjectionRequest): ProjectionResult {
       outsideLowVoltageProtection: g.outsideLowVoltageProtection,
       drainsBankIds: g.drainsBankIds,
       forcesStandby: g.forcesStandby,
+      how: g.how,
     };
   });
   return {
