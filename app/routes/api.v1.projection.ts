@@ -1,8 +1,8 @@
 import type { Route } from "./+types/api.v1.projection";
 import { getEnv } from "~/env.server";
-import { apiError, issuesOf, readJson } from "~/lib/http";
+import { apiError, readJson } from "~/lib/http";
 import { clientAddress, createRateLimiter } from "~/lib/rate-limit.server";
-import { projectionRequestSchema, runProjectionRequest } from "~/engine/api";
+import { parseProjectionRequest, runProjectionRequest } from "~/engine/api";
 
 const limiter = createRateLimiter({ limit: getEnv().PROJECTION_RATE_PER_MINUTE, windowMs: 60_000 });
 
@@ -19,15 +19,17 @@ export async function action({ request }: Route.ActionArgs) {
   }
   const body = await readJson(request);
   if (!body.ok) return body.response;
-  const parsed = projectionRequestSchema.safeParse(body.body);
-  if (!parsed.success) {
-    return apiError(400, "invalid_request", "The request does not match the schema (GET /api/v1/schema).", issuesOf(parsed.error));
+  // Schema, references between the model's parts and the state are all checked; never throws.
+  const parsed = parseProjectionRequest(body.body);
+  if (!parsed.ok) {
+    return apiError(
+      400,
+      "invalid_request",
+      "The request does not describe a valid rig and state (schema: GET /api/v1/schema).",
+      parsed.issues,
+    );
   }
-  const result = runProjectionRequest(parsed.data);
-  if (!result.ok) {
-    return apiError(400, "invalid_model", "The rig model is not consistent.", result.issues);
-  }
-  return Response.json(result.value);
+  return Response.json(runProjectionRequest(parsed.value));
 }
 
 export function loader() {
