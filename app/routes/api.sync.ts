@@ -1,0 +1,34 @@
+import type { Route } from "./+types/api.sync";
+import { protectedAction } from "~/auth/csrf.server";
+import { requireRigRole } from "~/auth/guards.server";
+import { getDb } from "~/db/db.server";
+import { apiError, issuesOf, readJson } from "~/lib/http";
+import { syncRequestSchema } from "~/offline/protocol";
+import { applySync } from "~/repos/sync.server";
+
+/** Bodies above this are refused before they are read (1,000 changes fit in well under it). */
+const MAX_BODY_BYTES = 4 * 1024 * 1024;
+
+/**
+ * POST /api/sync — a phone's batch of changes for one rig. Answers per change `applied`,
+ * `duplicate` or `refused` (with a reason), then the rig's changes since the phone's cursor.
+ * Signed out: 401 (the phone keeps its outbox and asks the person to sign in again).
+ */
+export const action = protectedAction(async ({ request }: Route.ActionArgs) => {
+  const receivedAt = new Date();
+  if (request.method !== "POST") return apiError(405, "method_not_allowed", "Use POST.", undefined, { allow: "POST" });
+  const length = Number(request.headers.get("content-length") ?? 0);
+  if (length > MAX_BODY_BYTES) return apiError(413, "too_large", "Send the changes in smaller batches (at most 1,000 per request).");
+  const body = await readJson(request);
+  if (!body.ok) return body.response;
+  const parsed = syncRequestSchema.safeParse(body.body);
+  if (!parsed.success) return apiError(400, "invalid_sync", "The sync request does not have the expected shape.", issuesOf(parsed.error));
+  const db = getDb();
+  const access = await requireRigRole(request, parsed.data.rigId, "guest", db);
+  const answer = await applySync(db, { userId: access.user.id, role: access.role }, parsed.data, { receivedAt });
+  return Response.json({ me: { userId: access.user.id, role: access.role }, ...answer }, { headers: { "cache-control": "private, no-store" } });
+});
+
+export function loader() {
+  return apiError(405, "method_not_allowed", "Use POST.", undefined, { allow: "POST" });
+}
