@@ -11,10 +11,13 @@ import {
 import type { Route } from "./+types/root";
 import { AppShell } from "~/components/app-shell";
 import { ServiceWorkerUpdate } from "~/components/sw-update";
+import { SyncAgent } from "~/components/sync-status";
 import { QueryProvider } from "~/hooks/query-provider";
 import { nightCookieValue } from "~/lib/night-mode";
 import { getUserAndRefresh } from "~/auth/session.server";
+import { currentRigOf } from "~/auth/guards.server";
 import { navFor } from "~/components/app-shell";
+import { lastRigSetCookie } from "~/lib/last-rig";
 import "./app.css";
 
 export const links: Route.LinksFunction = () => [
@@ -24,17 +27,34 @@ export const links: Route.LinksFunction = () => [
   { rel: "apple-touch-icon", href: "/icons/icon-180.png" },
 ];
 
-export async function loader({ request }: Route.LoaderArgs) {
+export async function loader({ request, params }: Route.LoaderArgs) {
   // Every page learns who is signed in; a session in use has its expiry rolled forward here.
   const { user, setCookie } = await getUserAndRefresh(request);
   const chosen = nightCookieValue(request.headers.get("cookie"));
+  const headers = new Headers();
+  if (setCookie) headers.append("Set-Cookie", setCookie);
+  // On a rig's pages: that rig goes in the navigation and is remembered for "/".
+  const currentRig = user ? await currentRigOf(user.id, params.rigId) : null;
+  if (currentRig) headers.append("Set-Cookie", lastRigSetCookie(currentRig.id));
   return data(
     {
       night: chosen ?? user?.preferences.nightDefault ?? false,
       user: user ? { name: user.name, email: user.email } : null,
+      currentRig,
     },
-    setCookie ? { headers: { "Set-Cookie": setCookie } } : undefined,
+    { headers },
   );
+}
+
+/**
+ * Offline, the root's server data (who is signed in, night mode) is kept as it was: asking
+ * again would fail and replace the page with an error. The logbook's local-first writes never
+ * need it again either.
+ */
+export function shouldRevalidate({ formAction, defaultShouldRevalidate }: Route.ShouldRevalidateFunctionArgs) {
+  if (typeof navigator !== "undefined" && !navigator.onLine) return false;
+  if (formAction && /^\/rigs\/[^/]+\/log(\/|\?|$)/.test(formAction)) return false;
+  return defaultShouldRevalidate;
 }
 
 export function Layout({ children }: { children: React.ReactNode }) {
@@ -61,11 +81,12 @@ export function Layout({ children }: { children: React.ReactNode }) {
 
 export default function App({ loaderData }: Route.ComponentProps) {
   return (
-    <AppShell night={loaderData.night} nav={navFor(loaderData.user !== null)}>
+    <AppShell night={loaderData.night} nav={navFor(loaderData.user !== null, loaderData.currentRig?.id)}>
       <QueryProvider>
         <Outlet />
       </QueryProvider>
       <ServiceWorkerUpdate />
+      <SyncAgent />
     </AppShell>
   );
 }

@@ -62,3 +62,10 @@ export async function requireRigRole(
   }
   return { user, role: row.role, rig: { id: row.id, name: row.name } };
 }
+
+/** The rig named by a route's :rigId when this person is on it (for navigation), else null. */
+export async function currentRigOf(userId: string, rigId: string | undefined, db: Db = getDb()) {
+  if (!isUuid(rigId)) return null;
+  const row = await findMembership(db, rigId, userId);
+  return row ? { id: row.id, name: row.name, role: row.role } : null;
+}

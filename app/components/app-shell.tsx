@@ -16,6 +16,11 @@ const icons = {
       <path d="M3 7h12v9H3zM15 10h4l2 3v3h-6M7 19a2 2 0 1 0 0-.01M17 19a2 2 0 1 0 0-.01" fill="none" stroke="currentColor" strokeWidth="2" strokeLinejoin="round" />
     </svg>
   ),
+  people: (
+    <svg viewBox="0 0 24 24" aria-hidden="true" className="size-6">
+      <path d="M9 11a3.5 3.5 0 1 0 0-7 3.5 3.5 0 0 0 0 7zM2 20a7 7 0 0 1 14 0M16 4.5a3.5 3.5 0 0 1 0 6.5M18 14a6 6 0 0 1 4 6" fill="none" stroke="currentColor" strokeWidth="2" strokeLinecap="round" />
+    </svg>
+  ),
   account: (
     <svg viewBox="0 0 24 24" aria-hidden="true" className="size-6">
       <path d="M12 12a4 4 0 1 0 0-8 4 4 0 0 0 0 8zM4 21a8 8 0 0 1 16 0" fill="none" stroke="currentColor" strokeWidth="2" strokeLinecap="round" />
@@ -28,11 +33,17 @@ export const primaryNav: NavItem[] = [
   { to: "/rigs", label: "Rigs", icon: icons.rigs },
 ];
 
-/** The navigation for a signed-in person, or the sign-in entry for everyone else. */
-export function navFor(signedIn: boolean): NavItem[] {
-  return signedIn
-    ? [...primaryNav, { to: "/account", label: "Account", icon: icons.account }]
-    : [primaryNav[0]!, { to: "/sign-in", label: "Sign in", icon: icons.account }];
+/**
+ * The navigation for a signed-in person (with "People" for the rig in view), or the sign-in
+ * entry for everyone else.
+ */
+export function navFor(signedIn: boolean, rigId?: string): NavItem[] {
+  if (!signedIn) return [primaryNav[0]!, { to: "/sign-in", label: "Sign in", icon: icons.account }];
+  return [
+    ...primaryNav,
+    ...(rigId ? [{ to: `/rigs/${rigId}/members`, label: "People", icon: icons.people }] : []),
+    { to: "/account", label: "Account", icon: icons.account },
+  ];
 }
 
 /**

@@ -1,6 +1,9 @@
-// Starts the production build against the test database for the browser tests.
+// Starts the production build against the test database for the browser tests, with the
+// local fakes (scripts/fakes.ts) it talks to: the SMTP fake whose messages /dev/outbox lists.
 import { spawn, type ChildProcess } from "node:child_process";
+import { rm } from "node:fs/promises";
 import { fileURLToPath } from "node:url";
+import { startSmtpFake } from "../../scripts/fakes";
 
 const root = fileURLToPath(new URL("../..", import.meta.url));
 
@@ -9,9 +12,13 @@ export default async function setup() {
   const baseUrl = `http://127.0.0.1:${port}`;
   process.env.E2E_BASE_URL = baseUrl;
   const children: ChildProcess[] = [];
+  const outboxDir = `${root}.data/test/outbox`;
+  await rm(outboxDir, { recursive: true, force: true });
+  const smtp = await startSmtpFake({ port: Number(process.env.E2E_SMTP_PORT ?? 2599), outboxDir });
+  const fakesEnv = { SMTP_PORT: String(smtp.port), DEV_OUTBOX_DIR: outboxDir };
   const server = spawn(`${root}node_modules/.bin/react-router-serve`, ["./build/server/index.js"], {
     cwd: root,
-    env: { ...process.env, NODE_ENV: "production", PORT: port, APP_URL: baseUrl },
+    env: { ...process.env, NODE_ENV: "production", PORT: port, APP_URL: baseUrl, ...fakesEnv },
     stdio: ["ignore", "ignore", "inherit"],
   });
   children.push(server);
@@ -28,5 +35,6 @@ export default async function setup() {
   }
   return async () => {
     for (const child of children) child.kill("SIGTERM");
+    await smtp.close();
   };
 }

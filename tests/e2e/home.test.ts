@@ -2,6 +2,7 @@ import { afterAll, beforeAll, describe, expect, test } from "vitest";
 import type { Browser } from "playwright-core";
 import { baseUrl, launchBrowser, phoneContext } from "./browser";
 import { juniperModel } from "../fixtures/juniper";
+import { closeAuthDb, signIn } from "./auth";
 
 let browser: Browser;
 let close: () => Promise<void>;
@@ -10,11 +11,23 @@ beforeAll(async () => {
 });
 afterAll(async () => {
   await close?.();
+  await closeAuthDb();
 });
 
 describe("Home page", () => {
-  test("shows the demo rig's name, its bank and a load, read from the database", async () => {
+  test("signed out, it shows what Tilldawn is and the way to sign in", async () => {
     const context = await phoneContext(browser);
+    const page = await context.newPage();
+    const response = await page.goto(baseUrl());
+    expect(response?.status()).toBe(200);
+    await page.getByRole("heading", { level: 1, name: "Will the bank last till dawn?" }).waitFor();
+    await page.getByRole("main").getByRole("link", { name: "Sign in" }).waitFor();
+    await context.close();
+  });
+
+  test("signed in as the demo owner, it opens the demo rig with its bank and a load, read from the database", async () => {
+    const context = await phoneContext(browser);
+    await signIn(context, "ada@juniper.example");
     const page = await context.newPage();
     const response = await page.goto(baseUrl());
     expect(response?.status()).toBe(200);
