@@ -18,10 +18,10 @@ import { clientAddress } from "~/lib/rate-limit.server";
 import { MailError, sendMail } from "~/mail/mailer.server";
 import { signInCodeMail } from "~/mail/templates";
 import { CODE_VALID_MINUTES, MAX_CODE_ATTEMPTS } from "./constants";
-import { CODE_REQUEST_WINDOW_S, consumeCode, hitLimit, recordCodeAttempt } from "./limits.server";
+import { CODE_REQUEST_WINDOW_S, consumeCode, hitLimit, pruneSignInRecords, recordCodeAttempt } from "./limits.server";
 
 export { CODE_VALID_MINUTES };
-import { createSession, safeRedirect } from "./session.server";
+import { createSession, deleteExpiredSessions, safeRedirect } from "./session.server";
 
 export const MAGIC_LINK_PATH = "/auth/verify";
 const CODE_COOKIE = "_totp";
@@ -98,7 +98,14 @@ function getAuthenticator(): Authenticator<void> {
         const target = new URL(`${link.pathname}${link.search}`, appOrigin());
         const redirectTo = safeRedirect(formData.get("redirectTo"), "");
         if (redirectTo) target.searchParams.set("redirectTo", redirectTo);
-        await sendMail(signInCodeMail({ to: email, code, magicLink: target.toString(), validMinutes: CODE_VALID_MINUTES }));
+        try {
+          await sendMail(signInCodeMail({ to: email, code, magicLink: target.toString(), validMinutes: CODE_VALID_MINUTES }));
+        } catch (error) {
+          // The strategy turns a thrown Error into its failure redirect (losing the typed
+          // address); a thrown Response comes back to requestCode as is.
+          if (error instanceof MailError) throw new Response(null, { status: 503 });
+          throw error;
+        }
       },
     },
     async ({ email, formData, request }) => {
@@ -107,6 +114,8 @@ function getAuthenticator(): Authenticator<void> {
       const db = getDb();
       const { jwe } = readCodeCookie(request);
       if (jwe) await consumeCode(db, jwe);
+      // Housekeeping rides along with sign-ins: expired sessions, day-old code rows and buckets.
+      await Promise.all([deleteExpiredSessions(db), pruneSignInRecords(db)]);
       const { user, created } = await findOrCreateUser(db, email);
       const session = await createSession(db, user.id, request.headers.get("user-agent") ?? "");
       const wanted = safeRedirect(formData?.get("redirectTo") ?? new URL(request.url).searchParams.get("redirectTo"));
@@ -192,18 +201,14 @@ export async function requestCode(request: Request, input: { email: unknown; red
   if (!byAddress.ok) return tooMany(values, "email", byAddress.retryAfterS, "Too many sign-in codes were asked for from this network.");
   const byEmail = await hitLimit(db, `sign-in-code:email:${email}`, env.SIGN_IN_CODES_PER_EMAIL, CODE_REQUEST_WINDOW_S);
   if (!byEmail.ok) return tooMany(values, "email", byEmail.retryAfterS, `Too many sign-in codes were sent to ${email}.`);
-  try {
-    const answer = await runStrategy(formRequest(request, { email, redirectTo: input.redirectTo }));
-    return withRedirectTo(answer, input.redirectTo);
-  } catch (error) {
-    if (error instanceof MailError) {
-      return data<SignInFormResult>(
-        { step: "email", values, error: "The e-mail with your code could not be sent. Try again in a moment." },
-        { status: 503 },
-      );
-    }
-    throw error;
+  const answer = await runStrategy(formRequest(request, { email, redirectTo: input.redirectTo }));
+  if (answer.status === 503) {
+    return data<SignInFormResult>(
+      { step: "email", values, error: "The e-mail with your code could not be sent. Try again in a moment." },
+      { status: 503 },
+    );
   }
+  return withRedirectTo(answer, input.redirectTo);
 }
 
 /** Checks a typed code (or a magic link, when `code` is null) within the per-code cap. */
