@@ -1,6 +1,7 @@
 import {
   data,
   isRouteErrorResponse,
+  type ShouldRevalidateFunctionArgs,
   Links,
   Meta,
   Outlet,
@@ -51,7 +52,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
  * again would fail and replace the page with an error. The logbook's local-first writes never
  * need it again either.
  */
-export function shouldRevalidate({ formAction, defaultShouldRevalidate }: Route.ShouldRevalidateFunctionArgs) {
+export function shouldRevalidate({ formAction, defaultShouldRevalidate }: ShouldRevalidateFunctionArgs) {
   if (typeof navigator !== "undefined" && !navigator.onLine) return false;
   if (formAction && /^\/rigs\/[^/]+\/log(\/|\?|$)/.test(formAction)) return false;
   return defaultShouldRevalidate;
