@@ -152,9 +152,19 @@ export function useRigState(rigId: string, initial: RigStatePayload, model: RigM
       const id = ++seq.current;
       setPending((p) => [...p, { id, change: c }]);
       const base = client.getQueryData<RigStatePayload>(rigKeys.state(rigId))?.state.version ?? 0;
+      if (typeof navigator !== "undefined" && !navigator.onLine) {
+        // No connection: saved on the phone and sent by the sync runner (app/offline).
+        client.setQueryData<RigStatePayload>(rigKeys.state(rigId), (old) => (old ? { ...old, state: applyChange(old.state, c) } : old));
+        setPending((p) => p.filter((x) => x.id !== id));
+        void import("~/offline/now.client").then(({ queueStateWrite }) =>
+          queueStateWrite(rigId, { baseVersion: base, clientTime: new Date().toISOString(), change: c }),
+        );
+        notify("info", "Saved on this phone; it is sent when the connection returns.");
+        return;
+      }
       mutation.mutate({ id, change: c, baseVersion: base });
     },
-    [client, mutation, rigId],
+    [client, mutation, notify, rigId],
   );
 
   const server = query.data ?? initial;

@@ -1,4 +1,5 @@
 import { data, isRouteErrorResponse, Link } from "react-router";
+import { keepNowOffline, readNowLocal } from "~/offline/now.client";
 import type { Route } from "./+types/rig";
 import { requireRigRole } from "~/auth/guards.server";
 import { getDb } from "~/db/db.server";
@@ -23,6 +24,27 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   const shared: RigStatePayload = { state, latestReading, role: access.role };
   return { model, shared, nowMs: Date.now() };
 }
+
+/**
+ * Offline first (app/offline): with a connection, the server's data is used and kept on the
+ * phone; without one (or when the server cannot be reached) the phone's copy is shown.
+ * On hydration `serverLoader()` hands back the server-rendered data without a request.
+ */
+export async function clientLoader({ params, serverLoader }: Route.ClientLoaderArgs) {
+  try {
+    if (!navigator.onLine) throw new Error("offline");
+    const fresh = await serverLoader();
+    void keepNowOffline(fresh);
+    return fresh;
+  } catch (error) {
+    // Sign-in redirects, 403 and 404 stand; only a missing network falls back to the phone.
+    if (error instanceof Response || (isRouteErrorResponse(error) && error.status < 500)) throw error;
+    const local = await readNowLocal(params.rigId);
+    if (local) return local;
+    throw error;
+  }
+}
+clientLoader.hydrate = true as const;
 
 export function meta({ data }: Route.MetaArgs) {
   return [{ title: data ? `${data.model.name} now · Tilldawn` : "Tilldawn" }];

@@ -1,0 +1,63 @@
+/**
+ * The Now screen offline: keep what the server last said (model, shared state, latest reading)
+ * in the local store, hand it back when there is no network, and queue switch changes made
+ * offline in the outbox (sent by the sync runner; last writer by server time wins).
+ */
+import type { RigModel } from "~/engine/model";
+import { applyChange, type LatestReading, type RigState, type StateWrite } from "~/schemas/rig-state";
+import { localDb, type Role } from "./db.client";
+import { enqueue } from "./outbox.client";
+import { readRigLocal, saveRigModel, saveRigState } from "./rig-data.client";
+
+export type NowPayload = {
+  model: { rigId: string; name: string; revision: number; model: RigModel; role: Role };
+  shared: { state: RigState; latestReading: LatestReading | null; role: Role };
+  nowMs: number;
+};
+
+/** Keeps the Now screen's server data for offline use (errors are ignored: a cache). */
+export async function keepNowOffline(payload: Omit<NowPayload, "nowMs">) {
+  try {
+    await saveRigModel(payload.model);
+    await saveRigState(payload.model.rigId, payload.shared.state, { latestReading: payload.shared.latestReading });
+  } catch {
+    /* private mode or storage full: the screen still works online */
+  }
+}
+
+/** The Now screen's data from the phone, or null when this rig was never opened here. */
+export async function readNowLocal(rigId: string): Promise<NowPayload | null> {
+  const snap = await readRigLocal(rigId);
+  if (!snap?.model) return null;
+  const local = await localDb().states.get(rigId);
+  const role = snap.rig.role ?? "guest";
+  const latestFromLog = await localDb()
+    .readings.where("[rigId+takenAt]")
+    .between([rigId, -Infinity], [rigId, Infinity])
+    .reverse()
+    .filter((r) => r.socPct !== null || r.bankVoltageV !== null)
+    .first();
+  const kept = (local?.extra?.latestReading as LatestReading | null | undefined) ?? null;
+  const latestReading: LatestReading | null =
+    latestFromLog && (!kept || latestFromLog.takenAt > Date.parse(kept.takenAt))
+      ? { id: latestFromLog.id, takenAt: new Date(latestFromLog.takenAt).toISOString(), socPct: latestFromLog.socPct, bankVoltageV: latestFromLog.bankVoltageV, currentA: latestFromLog.currentA }
+      : kept;
+  const state: RigState = local?.state ?? {
+    rigId, version: 0, modeId: null, switches: {}, positions: {}, soc: null, place: { kind: "home" }, weather: { kind: "clear" }, fieldTimes: {}, updatedAt: null,
+  };
+  return {
+    model: { rigId, name: snap.rig.name, revision: snap.model.revision, model: snap.model.model, role },
+    shared: { state, latestReading, role },
+    nowMs: Date.now(),
+  };
+}
+
+/** A Now-screen change made with no connection: applied on the phone, queued for the server. */
+export async function queueStateWrite(rigId: string, write: StateWrite) {
+  const db = localDb();
+  await db.transaction("rw", db.states, db.outbox, async () => {
+    const local = await db.states.get(rigId);
+    if (local) await db.states.update(rigId, { state: applyChange(local.state, write.change) });
+  });
+  await enqueue(db, rigId, "state.write", write, "state");
+}
