@@ -16,6 +16,11 @@ const icons = {
       <path d="M3 7h12v9H3zM15 10h4l2 3v3h-6M7 19a2 2 0 1 0 0-.01M17 19a2 2 0 1 0 0-.01" fill="none" stroke="currentColor" strokeWidth="2" strokeLinejoin="round" />
     </svg>
   ),
+  log: (
+    <svg viewBox="0 0 24 24" aria-hidden="true" className="size-6">
+      <path d="M6 3h10l3 3v15H6zM9 9h7M9 13h7M9 17h4" fill="none" stroke="currentColor" strokeWidth="2" strokeLinejoin="round" strokeLinecap="round" />
+    </svg>
+  ),
   people: (
     <svg viewBox="0 0 24 24" aria-hidden="true" className="size-6">
       <path d="M9 11a3.5 3.5 0 1 0 0-7 3.5 3.5 0 0 0 0 7zM2 20a7 7 0 0 1 14 0M16 4.5a3.5 3.5 0 0 1 0 6.5M18 14a6 6 0 0 1 4 6" fill="none" stroke="currentColor" strokeWidth="2" strokeLinecap="round" />
@@ -41,7 +46,12 @@ export function navFor(signedIn: boolean, rigId?: string): NavItem[] {
   if (!signedIn) return [primaryNav[0]!, { to: "/sign-in", label: "Sign in", icon: icons.account }];
   return [
     ...primaryNav,
-    ...(rigId ? [{ to: `/rigs/${rigId}/members`, label: "People", icon: icons.people }] : []),
+    ...(rigId
+      ? [
+          { to: `/rigs/${rigId}/log`, label: "Logbook", icon: icons.log },
+          { to: `/rigs/${rigId}/members`, label: "People", icon: icons.people },
+        ]
+      : []),
     { to: "/account", label: "Account", icon: icons.account },
   ];
 }
