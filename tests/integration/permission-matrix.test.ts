@@ -53,6 +53,7 @@ function fillPath(pattern: string): string {
   return pattern.replace(/:(\w+)/g, (_, name: string) => {
     if (name === "rigId") return ctx.rigId;
     if (name === "token") return ctx.inviteToken;
+    if (name.endsWith("Id")) return crypto.randomUUID();
     throw new Error(`The permission matrix does not know how to fill :${name}; add it to fillPath.`);
   }).replace("/*", "/no/such/page");
 }

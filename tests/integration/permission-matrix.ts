@@ -20,6 +20,7 @@ export type Outcome = "ok" | "signin" | "forbidden" | "notFound" | "notAllowed";
 
 /** What the test provides: the fixture rig and a pending invitation to someone else. */
 export type MatrixContext = { rigId: string; inviteToken: string };
+// (Other route parameters, e.g. :readingId, are filled with a fresh uuid.)
 
 export type MethodRow = {
   expect: Outcome | Record<Actor, Outcome>;
@@ -29,6 +30,9 @@ export type MethodRow = {
   csrf?: boolean;
 };
 export type RouteRow = { GET?: MethodRow; POST?: MethodRow; note?: string };
+
+const clientOnly =
+  "Client-only (clientLoader/clientAction over the offline store): the server sends the page shell and no data; what reaches the store is checked by POST /api/sync.";
 
 const members = (): Record<Actor, Outcome> => ({ anonymous: "signin", stranger: "notFound", guest: "ok", crew: "ok", owner: "ok" });
 const crewUp = (): Record<Actor, Outcome> => ({ anonymous: "signin", stranger: "notFound", guest: "forbidden", crew: "ok", owner: "ok" });
@@ -56,6 +60,11 @@ export const permissionMatrix: Record<string, RouteRow> = {
     POST: { expect: signedIn(), form: () => ({ name: "" }) },
   },
   "routes/rig.tsx": { GET: { expect: members() } },
+  "routes/rig.model.tsx": { GET: { expect: members() } },
+  "routes/rig.budget.tsx": { GET: { expect: members() } },
+  "routes/rig.log.tsx": { note: clientOnly },
+  "routes/rig.log.import.tsx": { note: clientOnly },
+  "routes/rig.log.$readingId.tsx": { note: clientOnly },
   "routes/members.tsx": {
     GET: { expect: members() },
     POST: { expect: ownerOnly(), form: () => ({ intent: "invite", email: "not an address", role: "guest" }) },
