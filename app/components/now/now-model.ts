@@ -123,6 +123,17 @@ function sourcesAt(model: RigModel, engineState: CurrentState, bank: Bank, ms: n
   return { solarW, otherW };
 }
 
+const profileCache = new WeakMap<object, Map<string, Float64Array>>();
+/** The engine's draw profiles for a budget (memoised per budget object). */
+function profilesFor(model: RigModel, graph: CircuitGraph, projection: Projection, s: CurrentState): Map<string, Float64Array> {
+  let p = profileCache.get(projection.budget);
+  if (!p) {
+    p = drawProfiles(model, graph, projection.budget, planOf(s));
+    profileCache.set(projection.budget, p);
+  }
+  return p;
+}
+
 function planOf(s: CurrentState): PlanInput {
   return { modeId: s.modeId, ...(s.loadsOn ? { loadsOn: s.loadsOn } : {}), ...(s.inverterIdsOn ? { inverterIdsOn: s.inverterIdsOn } : {}) };
 }
@@ -134,7 +145,7 @@ export function computeNow({ model, state, atMs }: NowInput): NowResult {
   const projection = runProjection(model, graph, engineState);
   const bank = projection.banks.find((b) => b.bankId === projection.primaryBankId)!;
   const bankModel = model.banks.find((b) => b.id === bank.bankId)!;
-  const profile = drawProfiles(model, graph, projection.budget, planOf(engineState)).get(bankModel.id);
+  const profile = profilesFor(model, graph, projection, engineState).get(bankModel.id);
   const hour = localHourFn(atMs, atMs + 60_000, model.timeZone)(atMs);
   const drawW = drawAt(profile, hour);
   const { solarW, otherW } = sourcesAt(model, engineState, bankModel, atMs, hour);
@@ -167,6 +178,28 @@ export interface ChartSeries {
 }
 
 const solarCache = new Map<string, number[]>();
+const nightCache = new Map<string, Array<[number, number]>>();
+
+/** Night spans (sunset → sunrise, from the engine's sun events) over the projection, memoised per place and start. */
+function nightsFor(place: { latDeg: number; lonDeg: number }, startMs: number, endMs: number, horizonH: number): Array<[number, number]> {
+  const key = `${place.latDeg}|${place.lonDeg}|${startMs}|${endMs}`;
+  const hit = nightCache.get(key);
+  if (hit) return hit;
+  const nights: Array<[number, number]> = [];
+  let prevSet: number | null = null;
+  for (let d = -1; d <= Math.ceil(horizonH / 24) + 1; d++) {
+    const from = startMs + d * 86_400_000 - 43_200_000;
+    const ev = sunEvents(from, from + 86_400_000, place.latDeg, place.lonDeg);
+    if (ev.sunriseMs !== null && prevSet !== null && ev.sunriseMs > prevSet) {
+      const a = Math.max(prevSet, startMs), b = Math.min(ev.sunriseMs, endMs);
+      if (b > a && !nights.some(([x]) => Math.abs(x - a / 1000) < 60)) nights.push([a / 1000, b / 1000]);
+    }
+    if (ev.sunsetMs !== null) prevSet = ev.sunsetMs;
+  }
+  if (nightCache.size > 20) nightCache.clear();
+  nightCache.set(key, nights);
+  return nights;
+}
 
 /** Chart series every 15 minutes over the projection (SoC from the projection; draw and solar from the engine's profiles and sun model). */
 export function chartSeries(model: RigModel, now: NowResult, everyMin = 15): ChartSeries {
@@ -176,7 +209,7 @@ export function chartSeries(model: RigModel, now: NowResult, everyMin = 15): Cha
   for (let i = 0; i < p.timesMs.length; i += stride) idx.push(i);
   const t = idx.map((i) => p.timesMs[i]! / 1000);
   const hourOf = localHourFn(p.startMs, p.timesMs[p.timesMs.length - 1]!, model.timeZone);
-  const profile = drawProfiles(model, now.graph, p.budget, planOf(now.engineState)).get(now.bankModel.id);
+  const profile = profilesFor(model, now.graph, p, now.engineState).get(now.bankModel.id);
   const drawW = idx.map((i) => drawAt(profile, hourOf(p.timesMs[i]!)));
   const place = now.engineState.location ?? model.home;
   const key = `${model.id}|${place.latDeg}|${place.lonDeg}|${now.engineState.weatherFactor}|${now.engineState.modeId}|${p.startMs}|${idx.length}`;
@@ -190,19 +223,7 @@ export function chartSeries(model: RigModel, now: NowResult, everyMin = 15): Cha
     if (solarCache.size > 20) solarCache.clear();
     solarCache.set(key, solarW);
   }
-  const nights: Array<[number, number]> = [];
-  const startMs = p.startMs;
-  const endMs = p.timesMs[p.timesMs.length - 1]!;
-  let prevSet: number | null = null;
-  for (let d = -1; d <= Math.ceil(p.horizonH / 24) + 1; d++) {
-    const from = startMs + d * 86_400_000 - 43_200_000;
-    const ev = sunEvents(from, from + 86_400_000, place.latDeg, place.lonDeg);
-    if (ev.sunriseMs !== null && prevSet !== null && ev.sunriseMs > prevSet) {
-      const a = Math.max(prevSet, startMs), b = Math.min(ev.sunriseMs, endMs);
-      if (b > a && !nights.some(([x]) => Math.abs(x - a / 1000) < 60)) nights.push([a / 1000, b / 1000]);
-    }
-    if (ev.sunsetMs !== null) prevSet = ev.sunsetMs;
-  }
+  const nights = nightsFor(place, p.startMs, p.timesMs[p.timesMs.length - 1]!, p.horizonH);
   return {
     t,
     socPct: idx.map((i) => now.bank.socPct[i]!),
