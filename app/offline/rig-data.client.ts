@@ -5,6 +5,7 @@
 import type { RigModel } from "~/engine/model";
 import type { RigState } from "~/schemas/rig-state";
 import { getMeta, localDb, setMeta, type LocalModel, type LocalRig, type Role } from "./db.client";
+import { syncRunner } from "./sync.client";
 
 export type RigSnapshot = { rig: LocalRig; model: LocalModel | null };
 export type FetchOutcome = "ok" | "offline" | "signed-out" | "not-found" | "error";
@@ -34,6 +35,7 @@ async function getJson(url: string): Promise<{ outcome: FetchOutcome; body?: unk
 export async function saveRigModel(input: { rigId: string; name: string; role: Role | null; revision: number; model: RigModel; userId?: string | null }) {
   const db = localDb();
   const userId = input.userId ?? (await getMeta<string | null>(db, "userId", null));
+  const isNew = !(await db.rigs.get(input.rigId));
   await db.transaction("rw", db.rigs, db.models, db.modes, async () => {
     await db.rigs.put({ id: input.rigId, name: input.name, role: input.role, userId, seenAt: Date.now() });
     await db.models.put({ rigId: input.rigId, revision: input.revision, name: input.name, model: input.model, savedAt: Date.now() });
@@ -43,6 +45,8 @@ export async function saveRigModel(input: { rigId: string; name: string; role: R
     await db.modes.where("rigId").equals(input.rigId).delete();
     await db.modes.bulkPut(input.model.modes.map((m, order) => ({ rigId: input.rigId, id: m.id, name: m.name, order })));
   });
+  // A rig new to this phone: fetch its logbook now rather than at the next periodic sync.
+  if (isNew) void syncRunner().syncNow("rig-added");
 }
 
 export async function saveRigState(rigId: string, state: RigState, extra?: Record<string, unknown>) {
