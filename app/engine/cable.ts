@@ -163,6 +163,20 @@ export const NEC310_16_AMPACITY: Partial<Record<AwgSize, readonly [number, numbe
   "1/0": [125, 150, 170], "2/0": [145, 175, 195], "3/0": [165, 200, 225], "4/0": [195, 230, 260],
 };
 
+const rowCache = new Map<string, readonly (readonly [number, number])[]>();
+/** (area mm², amperes) rows of one column, sorted by area; computed once per column. */
+function ampacityRows(standard: string, col: number, table: Partial<Record<AwgSize, readonly number[]>>): readonly (readonly [number, number])[] {
+  const key = `${standard}/${col}`;
+  let rows = rowCache.get(key);
+  if (!rows) {
+    rows = (Object.entries(table) as [AwgSize, readonly number[]][])
+      .map(([awg, amps]) => [awgAreaMm2(awg), amps[col]!] as const)
+      .sort((a, b) => a[0] - b[0]);
+    rowCache.set(key, rows);
+  }
+  return rows;
+}
+
 /** Which ampacity table: boats (33 CFR 183.425, also common practice in vans) or NEC 310.16. */
 export type AmpacityStandard = "boat" | "nec";
 
@@ -172,9 +186,7 @@ export function ampacityA(size: CableSize, tempRatingC: TempRatingC, engineSpace
   const table: Partial<Record<AwgSize, readonly number[]>> = standard === "nec" ? NEC310_16_AMPACITY : CFR183_AMPACITY;
   // NEC 310.16 has 60/75/90 °C columns; higher ratings use the 90 °C column.
   const col = standard === "nec" ? (tempRatingC <= 60 ? 0 : tempRatingC <= 75 ? 1 : 2) : TEMP_RATINGS.indexOf(tempRatingC);
-  const rows = (Object.entries(table) as [AwgSize, readonly number[]][])
-    .map(([awg, amps]) => [awgAreaMm2(awg), amps[col]!] as const)
-    .sort((a, b) => a[0] - b[0]);
+  const rows = ampacityRows(standard, col, table);
   let base: number;
   const listed = size.unit === "awg" ? table[size.awg] : undefined;
   if (listed) base = listed[col]!;

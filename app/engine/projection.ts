@@ -197,6 +197,7 @@ export function runProjection(model: RigModel, graph: CircuitGraph, state: Curre
   const coordCache: SunCoordinates[] = [];
   const coordsAt = (h: number): SunCoordinates => (coordCache[h] ??= sunCoordinates(startMs + h * 3600000));
   const sunOpts = { elevationM: place.elevationM ?? 0 };
+  const scratch: SunCoordinates = { alphaRad: 0, deltaRad: 0, distanceAu: 0, eqEquinoxDeg: 0 };
   const doyStart = dayOfYear(startMs);
   for (let s = 0; s < steps; s++) {
     const t0 = startMs + s * stepMs;
@@ -211,7 +212,7 @@ export function runProjection(model: RigModel, graph: CircuitGraph, state: Curre
     // The sun's coordinates change slowly: compute them hourly and interpolate (error < 1e-5°).
     const hourIdx = Math.floor((mid - startMs) / 3600000);
     const f = (mid - startMs) / 3600000 - hourIdx;
-    const sun = sunHorizontal(interpolateSunCoordinates(coordsAt(hourIdx), coordsAt(hourIdx + 1), f), mid, place.latDeg, place.lonDeg, sunOpts);
+    const sun = sunHorizontal(interpolateSunCoordinates(coordsAt(hourIdx), coordsAt(hourIdx + 1), f, scratch), mid, place.latDeg, place.lonDeg, sunOpts);
     const up = sun.elevationDeg > -0.267;
     if (prevUp === false && up && sunriseStep === null) sunriseStep = s;
     prevUp = up;

@@ -123,17 +123,20 @@ export function sunCoordinates(ms: number, deltaTSeconds?: number): SunCoordinat
   };
 }
 
-/** Linear interpolation of two coordinate sets a fraction f of the way (RA unwrapped). */
-export function interpolateSunCoordinates(a: SunCoordinates, b: SunCoordinates, f: number): SunCoordinates {
+/**
+ * Linear interpolation of two coordinate sets a fraction f of the way (RA unwrapped).
+ * Writes into `out` when given (no allocation in the projection's inner loop).
+ */
+export function interpolateSunCoordinates(a: SunCoordinates, b: SunCoordinates, f: number, out?: SunCoordinates): SunCoordinates {
   let dA = b.alphaRad - a.alphaRad;
   if (dA > Math.PI) dA -= 2 * Math.PI;
   else if (dA < -Math.PI) dA += 2 * Math.PI;
-  return {
-    alphaRad: a.alphaRad + dA * f,
-    deltaRad: a.deltaRad + (b.deltaRad - a.deltaRad) * f,
-    distanceAu: a.distanceAu + (b.distanceAu - a.distanceAu) * f,
-    eqEquinoxDeg: a.eqEquinoxDeg + (b.eqEquinoxDeg - a.eqEquinoxDeg) * f,
-  };
+  const o = out ?? { alphaRad: 0, deltaRad: 0, distanceAu: 0, eqEquinoxDeg: 0 };
+  o.alphaRad = a.alphaRad + dA * f;
+  o.deltaRad = a.deltaRad + (b.deltaRad - a.deltaRad) * f;
+  o.distanceAu = a.distanceAu + (b.distanceAu - a.distanceAu) * f;
+  o.eqEquinoxDeg = a.eqEquinoxDeg + (b.eqEquinoxDeg - a.eqEquinoxDeg) * f;
+  return o;
 }
 
 /** Topocentric horizon position from the sun's coordinates at an instant. */
