@@ -1,7 +1,7 @@
 import { useEffect, useRef, useState } from "react";
 import { useLocation } from "react-router";
 
-type Wb = import("workbox-window").Workbox;
+import type { Workbox as Wb } from "workbox-window";
 
 /** The pages worth keeping for offline use when a path is opened (a rig's Now and Logbook). */
 export function pagesToKeep(pathname: string, origin: string): string[] {

@@ -4,7 +4,7 @@ import { spawn, type ChildProcess } from "node:child_process";
 import { fileURLToPath } from "node:url";
 import { afterAll, beforeAll, describe, expect, test } from "vitest";
 import { and, eq, gte, like, sql } from "drizzle-orm";
-import type { Browser, BrowserContext, Page } from "playwright-core";
+import type { Browser, Page } from "playwright-core";
 import { baseUrl, launchBrowser, phoneContext } from "./browser";
 import { closeAuthDb, signIn } from "./auth";
 import { createDb } from "~/db/db.server";
