@@ -6,7 +6,7 @@ import { loader as schemaLoader } from "~/routes/api.v1.schema";
 const fixture = readFileSync(new URL("../fixtures/projection-request.json", import.meta.url), "utf8");
 const args = (request: Request) => ({ request, params: {}, context: {} }) as Parameters<typeof action>[0];
 
-function post(body: string, headers: Record<string, string> = { "content-type": "application/json" }, ip = crypto.randomUUID()) {
+function post(body: string, headers: Record<string, string> = { "content-type": "application/json" }, ip: string = crypto.randomUUID()) {
   return new Request("http://127.0.0.1/api/v1/projection", {
     method: "POST",
     headers: { "x-forwarded-for": ip, ...headers },
