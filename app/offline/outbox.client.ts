@@ -112,26 +112,34 @@ export async function acknowledge(db: TilldawnDb, sent: OutboxEntry[], results: 
   await db.transaction("rw", db.readings, db.outbox, async () => {
     const done: number[] = [];
     const touched = new Set<string>();
+    const refusedReadings = new Map<string, string>();
     for (const e of sent) {
       const result = byId.get(e.id);
       if (!result) continue; // not answered: stays, sent again next time
       if (result.status === "refused") {
         await db.outbox.update(e.seq!, { state: "refused", reason: result.reason, message: result.message });
-        if (e.kind === "reading.add" || e.kind === "reading.edit") {
-          await db.readings.update(e.entityId, { sync: "refused", refusal: result.message });
-        }
+        if (e.kind === "reading.add" || e.kind === "reading.edit") refusedReadings.set(e.entityId, result.message);
       } else {
         done.push(e.seq!);
         if (e.kind.startsWith("reading.")) touched.add(e.entityId);
       }
     }
     await db.outbox.bulkDelete(done);
-    for (const readingId of touched) {
-      const stillWaiting = await db.outbox.where("entityId").equals(readingId).filter((x) => x.state === "waiting").count();
-      if (!stillWaiting) await db.readings.where("id").equals(readingId).modify((r) => {
-        if (r.sync === "pending") r.sync = "synced";
-      });
-    }
+    if (!touched.size && !refusedReadings.size) return;
+    // In bulk: a batch can acknowledge a thousand readings at once.
+    const stillWaiting = new Set(
+      (await db.outbox.where("entityId").anyOf([...touched]).filter((x) => x.state === "waiting").toArray()).map((x) => x.entityId),
+    );
+    const ids = [...new Set([...touched, ...refusedReadings.keys()])];
+    const rows = await db.readings.bulkGet(ids);
+    const updated = rows.flatMap((r) => {
+      if (!r) return [];
+      const refusal = refusedReadings.get(r.id);
+      if (refusal !== undefined) return [{ ...r, sync: "refused" as const, refusal }];
+      if (r.sync === "pending" && !stillWaiting.has(r.id)) return [{ ...r, sync: "synced" as const }];
+      return [];
+    });
+    await db.readings.bulkPut(updated);
   });
 }
 

@@ -84,7 +84,7 @@ export class SyncRunner {
       random: Math.random,
       setTimeout: (fn, ms) => setTimeout(fn, ms),
       clearTimeout: (h) => clearTimeout(h as ReturnType<typeof setTimeout>),
-      batchSize: 500,
+      batchSize: 1000,
       debounceMs: 800,
       periodMs: 60_000,
       backoffBaseMs: 2_000,
