@@ -14,7 +14,7 @@ import {
 } from "./battery";
 import { computeBudget, drawProfiles, findMode, PROFILE_SLOTS, type Budget, type PlanInput } from "./draw";
 import { how, r, type How } from "./explain";
-import { arrayOutputW, dayOfYear, interpolateSunCoordinates, planeOfArrayWm2, sunCoordinates, sunHorizontal, utcOffsetMinutes, type SunCoordinates } from "./solar";
+import { arrayPowerW, clearSkyComponents, dayOfYear, extraterrestrialIrradianceWm2, interpolateSunCoordinates, sunCoordinates, sunHorizontal, transposeWm2, utcOffsetMinutes, type SunCoordinates } from "./solar";
 import type { CurrentState } from "./state";
 import { inWindow } from "./units";
 
@@ -199,6 +199,9 @@ export function runProjection(model: RigModel, graph: CircuitGraph, state: Curre
   const sunOpts = { elevationM: place.elevationM ?? 0 };
   const scratch: SunCoordinates = { alphaRad: 0, deltaRad: 0, distanceAu: 0, eqEquinoxDeg: 0 };
   const doyStart = dayOfYear(startMs);
+  const e0ByDay: number[] = [];
+  const solarBank = solar.map((src) => bankIndex.get(src.bankId)!);
+  const wf = Math.min(1, Math.max(0, weather));
   for (let s = 0; s < steps; s++) {
     const t0 = startMs + s * stepMs;
     const mid = t0 + stepMs / 2;
@@ -217,11 +220,14 @@ export function runProjection(model: RigModel, graph: CircuitGraph, state: Curre
     if (prevUp === false && up && sunriseStep === null) sunriseStep = s;
     prevUp = up;
     if (up && solar.length) {
-      const doy = doyStart + Math.floor((mid - startMs) / 86400000);
-      for (const src of solar) {
-        const bi = bankIndex.get(src.bankId)!;
-        const irr = planeOfArrayWm2(sun, doy, src.tiltDeg, src.azimuthDeg, weather);
-        const w = arrayOutputW(src, irr.poaWm2, ambientC, V[bi]!).outW;
+      const day = Math.floor((mid - startMs) / 86400000);
+      const e0 = (e0ByDay[day] ??= extraterrestrialIrradianceWm2(doyStart + day));
+      const comp = clearSkyComponents(sun.zenithDeg, e0);
+      for (let j = 0; j < solar.length; j++) {
+        const src = solar[j]!;
+        const bi = solarBank[j]!;
+        const poa = transposeWm2(comp, sun.zenithDeg, sun.azimuthDeg, src.tiltDeg, src.azimuthDeg) * wf;
+        const w = arrayPowerW(src, poa, ambientC, V[bi]!);
         srcW[bi] = srcW[bi]! + w;
         if (w > 0) kindAtStep[bi] = "sun";
       }

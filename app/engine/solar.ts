@@ -232,6 +232,24 @@ export interface IrradianceResult {
   poaWm2: number;
 }
 
+/** Clear-sky GHI split into beam and diffuse (Haurwitz + Erbs), before any weather factor. */
+export function clearSkyComponents(zenithDeg: number, extraterrestrialWm2: number): { ghiWm2: number; dniWm2: number; dhiWm2: number } {
+  if (zenithDeg >= 90) return { ghiWm2: 0, dniWm2: 0, dhiWm2: 0 };
+  const cz = Math.cos(zenithDeg * DEG);
+  const ghi = clearSkyGhiWm2(zenithDeg);
+  const kt = clamp(ghi / (extraterrestrialWm2 * Math.max(cz, 0.065)), 0, 1);
+  const dhi = ghi * erbsDiffuseFraction(kt);
+  const dni = cz > 0.02 ? Math.max(0, (ghi - dhi) / cz) : 0;
+  return { ghiWm2: ghi, dniWm2: dni, dhiWm2: dhi };
+}
+
+/** Isotropic-sky transposition of given components onto a plane, W/m². */
+export function transposeWm2(c: { ghiWm2: number; dniWm2: number; dhiWm2: number }, zenithDeg: number, sunAzimuthDeg: number, tiltDeg: number, azimuthDeg: number, albedo = 0.2): number {
+  const ct = Math.max(0, cosIncidence(zenithDeg, sunAzimuthDeg, tiltDeg, azimuthDeg));
+  const cb = Math.cos(tiltDeg * DEG);
+  return Math.max(0, c.dniWm2 * ct + (c.dhiWm2 * (1 + cb)) / 2 + (c.ghiWm2 * albedo * (1 - cb)) / 2);
+}
+
 /**
  * Plane-of-array irradiance, isotropic sky: POA = DNI·cos θ + DHI·(1 + cos β)/2 + GHI·ρ·(1 − cos β)/2,
  * from the clear-sky GHI split with Erbs. The weather factor (0–1) then scales every
@@ -241,16 +259,9 @@ export interface IrradianceResult {
 export function planeOfArrayWm2(sun: SunPosition, dayOfYear: number, tiltDeg: number, azimuthDeg: number, weatherFactor = 1, albedo = 0.2): IrradianceResult {
   if (sun.zenithDeg >= 90) return { ghiWm2: 0, dniWm2: 0, dhiWm2: 0, poaWm2: 0 };
   const wf = clamp(weatherFactor, 0, 1);
-  const cz = Math.cos(sun.zenithDeg * DEG);
-  const ghi = clearSkyGhiWm2(sun.zenithDeg);
-  const e0 = extraterrestrialIrradianceWm2(dayOfYear);
-  const kt = clamp(ghi / (e0 * Math.max(cz, 0.065)), 0, 1);
-  const dhi = ghi * erbsDiffuseFraction(kt);
-  const dni = cz > 0.02 ? Math.max(0, (ghi - dhi) / cz) : 0;
-  const ct = Math.max(0, cosIncidence(sun.zenithDeg, sun.azimuthDeg, tiltDeg, azimuthDeg));
-  const cb = Math.cos(tiltDeg * DEG);
-  const poa = dni * ct + (dhi * (1 + cb)) / 2 + (ghi * albedo * (1 - cb)) / 2;
-  return { ghiWm2: ghi * wf, dniWm2: dni * wf, dhiWm2: dhi * wf, poaWm2: Math.max(0, poa) * wf };
+  const c = clearSkyComponents(sun.zenithDeg, extraterrestrialIrradianceWm2(dayOfYear));
+  const poa = transposeWm2(c, sun.zenithDeg, sun.azimuthDeg, tiltDeg, azimuthDeg, albedo);
+  return { ghiWm2: c.ghiWm2 * wf, dniWm2: c.dniWm2 * wf, dhiWm2: c.dhiWm2 * wf, poaWm2: poa * wf };
 }
 
 /* ------------------------------------------------------------- array */
@@ -288,6 +299,12 @@ export interface ArrayOutput {
 /** Output of a solar array into the bank for a plane-of-array irradiance. */
 export function arrayOutputW(src: SolarSource, poaWm2: number, ambientC: number, bankV: number): ArrayOutput {
   if (poaWm2 <= 0) return { outW: 0, poaWm2: 0, cellTempC: ambientC };
+  return { outW: arrayPowerW(src, poaWm2, ambientC, bankV), poaWm2, cellTempC: ambientC + CELL_RISE_C_PER_WM2 * poaWm2 };
+}
+
+/** The same as arrayOutputW(...).outW, without allocating. */
+export function arrayPowerW(src: SolarSource, poaWm2: number, ambientC: number, bankV: number): number {
+  if (poaWm2 <= 0) return 0;
   const cellTempC = ambientC + CELL_RISE_C_PER_WM2 * poaWm2;
   const losses = (src.lossesPct ?? DEFAULT_LOSSES_PCT) / 100;
   const gamma = (src.tempCoeffPctPerC ?? -0.37) / 100;
@@ -295,7 +312,7 @@ export function arrayOutputW(src: SolarSource, poaWm2: number, ambientC: number,
   if (src.controller === "mppt") w *= (1 + gamma * (cellTempC - 25)) * MPPT_EFFICIENCY;
   else w *= PWM_FACTOR;
   const cap = src.maxChargeA !== undefined ? src.maxChargeA * bankV : Number.POSITIVE_INFINITY;
-  return { outW: Math.max(0, Math.min(w, cap)), poaWm2, cellTempC };
+  return Math.max(0, Math.min(w, cap));
 }
 
 export function arrayHow(src: SolarSource): How {
