@@ -28,8 +28,8 @@ interface Section {
 }
 
 function timeIt(fn: () => unknown, opts: { warmup?: number; runs?: number } = {}): { median: number; p95: number; cpuMedian: number } {
-  const warmup = opts.warmup ?? 30;
-  const runs = opts.runs ?? 200;
+  const warmup = opts.warmup ?? 100;
+  const runs = opts.runs ?? 300;
   for (let i = 0; i < warmup; i++) fn();
   const samples: number[] = [];
   const cpu: number[] = [];

@@ -13,6 +13,9 @@ import type { CurrentState } from "./state";
  * assumption, not a climate statistic: override with the local clearness). */
 export const TYPICAL_WEATHER_FACTOR = 0.7;
 
+/** Daily harvests by value of their inputs: a tap that switches a load does not move the sun. */
+const harvestCache = new Map<string, number>();
+
 export interface Autonomy {
   bankId: string;
   name: string;
@@ -51,8 +54,15 @@ export function autonomy(
   const arrays = model.sources.filter((s): s is SolarSource => s.kind === "solar" && s.bankId === bank.id);
   let solarWh = 0;
   if (arrays.length) {
-    const h = harvestArrays(arrays, { ...place, timeZone: model.timeZone }, date, { weatherFactor: wf, ambientC: state?.ambientC ?? 20, bankV: v });
-    for (const row of h.hourlyWh) for (const wh of row) solarWh += wh;
+    const key = JSON.stringify([arrays, place, model.timeZone, date, wf, state?.ambientC ?? 20, v]);
+    const cached = harvestCache.get(key);
+    if (cached !== undefined) solarWh = cached;
+    else {
+      const h = harvestArrays(arrays, { ...place, timeZone: model.timeZone }, date, { weatherFactor: wf, ambientC: state?.ambientC ?? 20, bankV: v });
+      for (const row of h.hourlyWh) for (const wh of row) solarWh += wh;
+      if (harvestCache.size >= 32) harvestCache.delete(harvestCache.keys().next().value!);
+      harvestCache.set(key, solarWh);
+    }
   }
   const eff = bankChargeEfficiency(bank);
   // Conservative: all solar passes through the battery once (× η) before use.
