@@ -63,6 +63,25 @@ export type OutboxEntry = {
   message?: string;
 };
 
+/** Synced readings of one rig and UTC day, packed column by column (see readings-store.client.ts). */
+export type LocalReadingDay = {
+  rigId: string;
+  day: number;
+  ids: string[];
+  t: Float64Array;
+  v: Float32Array;
+  a: Float32Array;
+  soc: Float32Array;
+  temp: Float32Array;
+  wh: Float32Array;
+  notes: string[];
+  /** One letter per reading: h (by hand), c (CSV), d (device). */
+  src: string;
+  authors: string[];
+  author: Uint16Array;
+  upd: Float64Array;
+};
+
 export type MetaEntry = { key: string; value: unknown };
 
 export class TilldawnDb extends Dexie {
@@ -71,6 +90,7 @@ export class TilldawnDb extends Dexie {
   states!: EntityTable<LocalState, "rigId">;
   modes!: Table<LocalMode, [string, string]>;
   readings!: EntityTable<LocalReading, "id">;
+  readingDays!: Table<LocalReadingDay, [string, number]>;
   outbox!: EntityTable<OutboxEntry, "seq">;
   meta!: EntityTable<MetaEntry, "key">;
 
@@ -85,6 +105,8 @@ export class TilldawnDb extends Dexie {
       outbox: "++seq, &id, [rigId+state], entityId, state",
       meta: "key",
     });
+    // 2: older synced readings packed per day (a year of 5-minute readings stays small).
+    this.version(2).stores({ readingDays: "[rigId+day], rigId" });
   }
 }
 

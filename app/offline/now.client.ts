@@ -8,6 +8,7 @@ import { applyChange, type LatestReading, type RigState, type StateWrite } from 
 import { localDb, type Role } from "./db.client";
 import { enqueue } from "./outbox.client";
 import { readRigLocal, saveRigModel, saveRigState } from "./rig-data.client";
+import { readingsInRange } from "./readings-store.client";
 
 export type NowPayload = {
   model: { rigId: string; name: string; revision: number; model: RigModel; role: Role };
@@ -31,12 +32,7 @@ export async function readNowLocal(rigId: string): Promise<NowPayload | null> {
   if (!snap?.model) return null;
   const local = await localDb().states.get(rigId);
   const role = snap.rig.role ?? "guest";
-  const latestFromLog = await localDb()
-    .readings.where("[rigId+takenAt]")
-    .between([rigId, -Infinity], [rigId, Infinity])
-    .reverse()
-    .filter((r) => r.socPct !== null || r.bankVoltageV !== null)
-    .first();
+  const latestFromLog = (await readingsInRange(localDb(), rigId, Date.now() - 7 * 86_400_000)).find((r) => r.socPct !== null || r.bankVoltageV !== null);
   const kept = (local?.extra?.latestReading as LatestReading | null | undefined) ?? null;
   const latestReading: LatestReading | null =
     latestFromLog && (!kept || latestFromLog.takenAt > Date.parse(kept.takenAt))

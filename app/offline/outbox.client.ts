@@ -5,6 +5,7 @@
  * entry stays, marked, so the person can see what was not saved and why.
  */
 import type { TilldawnDb, LocalReading, OutboxEntry } from "./db.client";
+import { unpackReadings } from "./readings-store.client";
 import type { ChangeKind, ChangePayload, ChangeResult, NewReading, ReadingEdit } from "./protocol";
 
 export const newId = () => crypto.randomUUID();
@@ -58,7 +59,10 @@ export async function addReadings(db: TilldawnDb, rigId: string, inputs: Reading
 
 /** An explicit edit: applied locally at once, sent as an edit op (never as an overwrite). */
 export async function editReading(db: TilldawnDb, rigId: string, readingId: string, set: ReadingEdit) {
-  await db.transaction("rw", db.readings, db.outbox, async () => {
+  await db.transaction("rw", db.readings, db.readingDays, db.outbox, async () => {
+    // An older reading is taken out of its packed day and becomes a record of its own again.
+    const unpacked = await unpackReadings(db, rigId, [readingId]);
+    if (unpacked.length) await db.readings.bulkPut(unpacked);
     const local = await db.readings.get(readingId);
     if (local) {
       const next: Partial<LocalReading> = { sync: "pending", updatedAt: Date.now() };
@@ -75,8 +79,9 @@ export async function editReading(db: TilldawnDb, rigId: string, readingId: stri
 }
 
 export async function deleteReading(db: TilldawnDb, rigId: string, readingId: string) {
-  await db.transaction("rw", db.readings, db.outbox, async () => {
+  await db.transaction("rw", db.readings, db.readingDays, db.outbox, async () => {
     await db.readings.delete(readingId);
+    await unpackReadings(db, rigId, [readingId]);
     await db.outbox.add(entry(rigId, "reading.delete", { readingId }, readingId));
   });
   changed();
@@ -132,7 +137,7 @@ export async function acknowledge(db: TilldawnDb, sent: OutboxEntry[], results: 
     );
     const ids = [...new Set([...touched, ...refusedReadings.keys()])];
     const rows = await db.readings.bulkGet(ids);
-    const updated = rows.flatMap((r) => {
+    const updated = rows.flatMap((r): LocalReading[] => {
       if (!r) return [];
       const refusal = refusedReadings.get(r.id);
       if (refusal !== undefined) return [{ ...r, sync: "refused" as const, refusal }];

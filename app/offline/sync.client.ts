@@ -14,6 +14,7 @@
 import { acknowledge, countOutbox, nextBatch, onLocalChange } from "./outbox.client";
 import { getMeta, localDb, setMeta, windowDays, type LocalReading, type TilldawnDb } from "./db.client";
 import type { PulledChange, SyncResponse, WireReading } from "./protocol";
+import { compactReadings, prunePackedDays, unpackReadings } from "./readings-store.client";
 
 export type SyncState = "idle" | "syncing" | "offline" | "error";
 export type SyncErrorCode = "auth" | "network" | "server" | "refused_request";
@@ -258,6 +259,8 @@ export class SyncRunner {
       if (batch.length < this.o.batchSize && !answer.more) break;
     }
     await pruneReadings(db, rigId, this.o.now() - days * DAY_MS);
+    await prunePackedDays(db, rigId, this.o.now() - days * DAY_MS);
+    await compactReadings(db, rigId, this.o.now());
   }
 
   private async post(body: unknown): Promise<SyncResponse> {
@@ -292,7 +295,7 @@ export class SyncRunner {
     const db = this.o.db;
     const readings = changes.flatMap((c) => (c.kind === "reading" ? [c.reading] : []));
     if (readings.length) {
-      await db.transaction("rw", db.readings, db.outbox, async () => {
+      await db.transaction("rw", db.readings, db.readingDays, db.outbox, async () => {
         // A reading with a change of ours still waiting keeps our version until that change is answered.
         const pending = new Set((await db.outbox.where("entityId").anyOf(readings.map((r) => r.id)).filter((e) => e.state === "waiting").toArray()).map((e) => e.entityId));
         const put: LocalReading[] = [];
@@ -304,6 +307,8 @@ export class SyncRunner {
         }
         await db.readings.bulkPut(put);
         await db.readings.bulkDelete(gone);
+        // Packed copies of changed or deleted readings are dropped (a changed one lives in `readings` until packed again).
+        await unpackReadings(db, rigId, [...put.map((r) => r.id), ...gone]);
       });
     }
     for (const c of changes) if (c.kind !== "reading") this.o.onRemoteChange?.(rigId, c.kind);

@@ -5,11 +5,12 @@ import { fmtTime } from "~/components/log/format";
 import { getMeta, localDb } from "~/offline/db.client";
 import { deleteReading, editReading } from "~/offline/outbox.client";
 import { READING_VALUE_KEYS, type ReadingEdit } from "~/offline/protocol";
+import { findReading } from "~/offline/readings-store.client";
 
 /** Edit or delete one reading (its author or an owner), on the phone first. */
 export async function clientLoader({ params }: Route.ClientLoaderArgs) {
   const db = localDb();
-  const [reading, rig] = await Promise.all([db.readings.get(params.readingId), db.rigs.get(params.rigId)]);
+  const [reading, rig] = await Promise.all([findReading(db, params.readingId), db.rigs.get(params.rigId)]);
   if (!reading || reading.rigId !== params.rigId) throw data({ message: "That reading is not in this phone's logbook." }, { status: 404 });
   const userId = rig?.userId ?? (await getMeta<string | null>(db, "userId", null));
   const mayEdit = rig?.role === "owner" || (rig?.role === "crew" && reading.authorId === userId);
@@ -26,7 +27,7 @@ export async function clientAction({ request, params }: Route.ClientActionArgs) 
   }
   const parsed = parseReadingForm({ ...(form as ReadingForm), direction: Number(form.currentA) >= 0 ? "charging" : "discharging" });
   if (!parsed.ok) return { errors: parsed.errors };
-  const before = await db.readings.get(params.readingId);
+  const before = await findReading(db, params.readingId);
   if (!before) throw data({ message: "That reading is not in this phone's logbook." }, { status: 404 });
   // Only what changed travels, as an explicit edit.
   const set: ReadingEdit = {};

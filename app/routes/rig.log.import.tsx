@@ -6,6 +6,7 @@ import { convertRows, detectUnits, FIELDS, guessMapping, type Converted, type Fi
 import { fmt, fmtCurrent, fmtTime } from "~/components/log/format";
 import { getMeta, localDb } from "~/offline/db.client";
 import { addReadings } from "~/offline/outbox.client";
+import { readingsInRange } from "~/offline/readings-store.client";
 
 /** Largest file read (a year of 5-minute readings is about 6 MB). */
 const MAX_BYTES = 40 * 1024 * 1024;
@@ -67,8 +68,7 @@ export default function ImportReadings({ loaderData }: Route.ComponentProps) {
   async function check() {
     if (!file || !units) return;
     const db = localDb();
-    const existing = new Set<number>();
-    await db.readings.where("[rigId+takenAt]").between([rigId, -Infinity], [rigId, Infinity]).each((r) => void existing.add(r.takenAt));
+    const existing = new Set((await readingsInRange(db, rigId)).map((r) => r.takenAt));
     setChecked(await convertRows(rigId, file.rows, mapping, units, existing));
   }
 

@@ -11,6 +11,7 @@ import { getMeta, localDb, type LocalReading } from "~/offline/db.client";
 import { useLive } from "~/offline/live.client";
 import { addReadings, deleteReading } from "~/offline/outbox.client";
 import { fetchRig, readRigLocal } from "~/offline/rig-data.client";
+import { readingsInRange } from "~/offline/readings-store.client";
 
 const DAY_MS = 86_400_000;
 const PAGE = 25;
@@ -86,7 +87,7 @@ export default function Logbook({ loaderData }: Route.ComponentProps) {
   const [server, setServer] = useState<{ range: RangeId; series: ChartSeries; bucketS: number } | null>(null);
 
   const all = useLive(
-    () => localDb().readings.where("[rigId+takenAt]").between([rigId, -Infinity], [rigId, Infinity]).reverse().toArray(),
+    () => readingsInRange(localDb(), rigId),
     [rigId],
     [] as LocalReading[],
   );
