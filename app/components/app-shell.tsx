@@ -44,14 +44,13 @@ export const primaryNav: NavItem[] = [
  */
 export function navFor(signedIn: boolean, rigId?: string): NavItem[] {
   if (!signedIn) return [primaryNav[0]!, { to: "/sign-in", label: "Sign in", icon: icons.account }];
+  if (!rigId) return [...primaryNav, { to: "/account", label: "Account", icon: icons.account }];
+  // With a rig in view, "Now" is that rig's Now screen and "Rigs" lights up only on the list.
   return [
-    ...primaryNav,
-    ...(rigId
-      ? [
-          { to: `/rigs/${rigId}/log`, label: "Logbook", icon: icons.log },
-          { to: `/rigs/${rigId}/members`, label: "People", icon: icons.people },
-        ]
-      : []),
+    { to: `/rigs/${rigId}`, label: "Now", icon: icons.now, end: true },
+    { to: `/rigs/${rigId}/log`, label: "Logbook", icon: icons.log },
+    { to: `/rigs/${rigId}/members`, label: "People", icon: icons.people },
+    { to: "/rigs", label: "Rigs", icon: icons.rigs, end: true },
     { to: "/account", label: "Account", icon: icons.account },
   ];
 }
