@@ -12,7 +12,7 @@ import {
 import type { Route } from "./+types/root";
 import { AppShell } from "~/components/app-shell";
 import { ServiceWorkerUpdate } from "~/components/sw-update";
-import { SyncAgent } from "~/components/sync-status";
+import { SyncAgent } from "~/components/sync-agent";
 import { QueryProvider } from "~/hooks/query-provider";
 import { nightCookieValue } from "~/lib/night-mode";
 import { getUserAndRefresh } from "~/auth/session.server";

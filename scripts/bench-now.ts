@@ -13,6 +13,7 @@ import { createDb } from "../app/db/db.server";
 import { rigs, users } from "../app/db/schema";
 import { createSession, SESSION_COOKIE } from "../app/auth/session.server";
 import { demoPeople } from "../tests/fixtures/demo";
+import { pageWeight } from "./page-weight";
 
 const base = process.argv[2] ?? process.env.E2E_BASE_URL ?? "http://127.0.0.1:3000";
 const rounds = Number(process.env.BENCH_ROUNDS ?? 20);
@@ -62,6 +63,8 @@ try {
   console.log(`Now toggle → runway (4x CPU throttle, ${rounds} toggles): ${stats(runway)}`);
   console.log(`Now toggle → chart  (4x CPU throttle, ${rounds} toggles): ${stats(chart)}`);
   const worst = Math.max(...chart, ...runway);
+  const weight = await pageWeight(`${base}/rigs/${rig.id}`, { cookie: setCookie.split(";")[0]! });
+  console.log(`Now route JavaScript at first load: ${weight.gzipKB} KB gzip in ${weight.files.length} files (target < 200 KB; the chart module loads after).`);
   console.log(worst < 50 ? "Under the 50 ms target." : `Over the 50 ms target (worst ${worst.toFixed(1)} ms).`);
 } finally {
   await browser.close();

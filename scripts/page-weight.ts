@@ -1,10 +1,11 @@
 // Measures the gzip size of the JavaScript a page loads from the built app (build/client),
 // following the page's modulepreload links and script tags. Usage: page-weight.ts URL [URL…]
+// (pageWeight also takes request headers, e.g. a session cookie for signed-in pages).
 import { readFileSync } from "node:fs";
 import { gzipSync } from "node:zlib";
 
-export async function pageWeight(url: string) {
-  const html = await (await fetch(url)).text();
+export async function pageWeight(url: string, headers: Record<string, string> = {}) {
+  const html = await (await fetch(url, { headers })).text();
   const srcs = new Set<string>();
   for (const m of html.matchAll(/<link rel="modulepreload" href="([^"]+)"/g)) srcs.add(m[1]!);
   for (const m of html.matchAll(/<script[^>]+src="([^"]+)"/g)) srcs.add(m[1]!);

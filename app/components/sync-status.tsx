@@ -17,16 +17,6 @@ export function syncLabel(s: SyncStatus): { text: string; tone: "ok" | "wait" | 
   return { text: s.lastSyncedAt ? "Synced" : "Saved on phone", tone: "ok" };
 }
 
-/** Starts the sync runner once in the browser (mounted by the root). */
-export function SyncAgent() {
-  useEffect(() => {
-    const runner = syncRunner();
-    runner.start();
-    return () => runner.stop();
-  }, []);
-  return null;
-}
-
 /** A visible sync state with the count of waiting changes, a retry, and a sign-in prompt. */
 export function SyncStatusBar({ className }: { className?: string }) {
   const status = useSyncStatus();

@@ -1,5 +1,4 @@
 import { data, isRouteErrorResponse, Link } from "react-router";
-import { keepNowOffline, readNowLocal } from "~/offline/now.client";
 import type { Route } from "./+types/rig";
 import { requireRigRole } from "~/auth/guards.server";
 import { getDb } from "~/db/db.server";
@@ -31,6 +30,9 @@ export async function loader({ request, params }: Route.LoaderArgs) {
  * On hydration `serverLoader()` hands back the server-rendered data without a request.
  */
 export async function clientLoader({ params, serverLoader }: Route.ClientLoaderArgs) {
+  // The phone's store loads with the loader, not with the page: the server-rendered numbers
+  // show first. The worker precaches the module, so this works offline too.
+  const { keepNowOffline, readNowLocal } = await import("~/offline/now.client");
   try {
     if (!navigator.onLine) throw new Error("offline");
     const fresh = await serverLoader();
