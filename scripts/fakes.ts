@@ -7,16 +7,10 @@ import { mkdir, rename, writeFile } from "node:fs/promises";
 import path from "node:path";
 import { simpleParser } from "mailparser";
 import { SMTPServer } from "smtp-server";
+import type { OutboxEntry } from "../app/mail/outbox.server";
 
-export type OutboxMessage = {
-  id: string;
-  receivedAt: string;
-  from: string;
-  to: string[];
-  subject: string;
-  text: string;
-  html: string;
-};
+/** The stored shape is the one the /dev/outbox page reads. */
+export type OutboxMessage = OutboxEntry;
 
 export type RunningFake = { name: string; port: number; close: () => Promise<void> };
 
