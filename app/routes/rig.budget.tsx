@@ -17,6 +17,23 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   return { rig: access.rig, model: checked.model, state, nowMs: Math.floor(Date.now() / 60_000) * 60_000 };
 }
 
+/** Offline first: the server's copy when it answers, else the one kept on the phone by Now. */
+export async function clientLoader({ params, serverLoader }: Route.ClientLoaderArgs) {
+  const [{ readNowLocal }, { serverThenPhone }] = await Promise.all([
+    import("~/offline/now.client"),
+    import("~/offline/offline-loader.client"),
+  ]);
+  return serverThenPhone(serverLoader, async () => {
+    const p = await readNowLocal(params.rigId);
+    return p ? {
+    rig: { id: p.model.rigId, name: p.model.name },
+    model: p.model.model,
+    state: p.shared.state,
+    nowMs: Math.floor(p.nowMs / 60_000) * 60_000,
+  } : null;
+  });
+}
+
 export function meta({ data }: Route.MetaArgs) {
   return [{ title: data ? `${data.rig.name} day budget · Tilldawn` : "Tilldawn" }];
 }

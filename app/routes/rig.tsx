@@ -32,19 +32,11 @@ export async function loader({ request, params }: Route.LoaderArgs) {
 export async function clientLoader({ params, serverLoader }: Route.ClientLoaderArgs) {
   // The phone's store loads with the loader, not with the page: the server-rendered numbers
   // show first. The worker precaches the module, so this works offline too.
-  const { keepNowOffline, readNowLocal } = await import("~/offline/now.client");
-  try {
-    if (!navigator.onLine) throw new Error("offline");
-    const fresh = await serverLoader();
-    void keepNowOffline(fresh);
-    return fresh;
-  } catch (error) {
-    // Sign-in redirects, 403 and 404 stand; only a missing network falls back to the phone.
-    if (error instanceof Response || (isRouteErrorResponse(error) && error.status < 500)) throw error;
-    const local = await readNowLocal(params.rigId);
-    if (local) return local;
-    throw error;
-  }
+  const [{ keepNowOffline, readNowLocal }, { serverThenPhone }] = await Promise.all([
+    import("~/offline/now.client"),
+    import("~/offline/offline-loader.client"),
+  ]);
+  return serverThenPhone(serverLoader, () => readNowLocal(params.rigId), keepNowOffline);
 }
 clientLoader.hydrate = true as const;
 

@@ -76,10 +76,20 @@ describe("Offline first in Chromium", () => {
     await page.getByTestId("runway").waitFor();
     expect(await page.getByTestId("runway").textContent()).toMatch(/\d/);
 
-    // Now → Logbook → Now → Logbook, all without a network. (The circuit map does not exist yet.)
+    // Now → Logbook → Now → the rig's read views → Logbook, all without a network, from what
+    // the phone kept. (The circuit map does not exist yet.)
     await page.getByRole("link", { name: "Logbook" }).first().click();
     await page.getByRole("heading", { name: "Logbook" }).waitFor();
     await page.getByRole("link", { name: "Juniper" }).first().click();
+    await page.getByTestId("runway").waitFor();
+    await page.getByRole("link", { name: "Rig as built" }).click();
+    await page.getByText(/As built, revision \d+/).waitFor();
+    await page.getByText("Compressor fridge").first().waitFor();
+    await page.getByRole("link", { name: "Back to Now" }).click();
+    await page.getByTestId("runway").waitFor();
+    await page.getByRole("link", { name: "Day budget" }).click();
+    await page.getByRole("heading", { name: "By load" }).waitFor();
+    await page.getByRole("link", { name: "Back to Now" }).click();
     await page.getByTestId("runway").waitFor();
     await page.getByRole("link", { name: "Logbook" }).first().click();
     await page.getByRole("heading", { name: "Logbook" }).waitFor();
