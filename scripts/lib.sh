@@ -26,7 +26,7 @@ ensure_node_modules() {
   local stamp="$ROOT/node_modules/.package-lock.json"
   if [ ! -f "$stamp" ] || [ "$ROOT/package-lock.json" -nt "$stamp" ]; then
     log "Installing node dependencies (npm ci)"
-    (cd "$ROOT" && npm ci --no-audit --no-fund --loglevel=error) || die "npm ci failed"
+    (cd "$ROOT" && npm ci --include=dev --no-audit --no-fund --loglevel=error) || die "npm ci failed"
   fi
 }
 
