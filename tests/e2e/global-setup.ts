@@ -18,7 +18,7 @@ export default async function setup() {
   const fakesEnv = { SMTP_PORT: String(smtp.port), DEV_OUTBOX_DIR: outboxDir };
   const server = spawn(`${root}node_modules/.bin/react-router-serve`, ["./build/server/index.js"], {
     cwd: root,
-    env: { ...process.env, NODE_ENV: "production", PORT: port, APP_URL: baseUrl, ...fakesEnv },
+    env: { ...process.env, NODE_ENV: "production", HOST: "127.0.0.1", PORT: port, APP_URL: baseUrl, ...fakesEnv },
     stdio: ["ignore", "ignore", "inherit"],
   });
   children.push(server);
