@@ -187,7 +187,15 @@ export function useRigState(rigId: string, initial: RigStatePayload, model: RigM
 export function useModeEdit(rigId: string) {
   const client = useQueryClient();
   return useMutation({
-    mutationFn: (body: unknown) => postJson<{ revision: number; modeId: string; model: RigModel }>(`/api/rigs/${rigId}/modes`, body),
+    mutationFn: async (body: unknown) => {
+      const current = client.getQueryData<RigModelPayload>(rigKeys.model(rigId));
+      if (current && typeof navigator !== "undefined" && !navigator.onLine) {
+        // No connection: saved on the phone and sent by the sync runner (app/offline).
+        const { queueModeEdit } = await import("~/offline/now.client");
+        return queueModeEdit(current, body);
+      }
+      return postJson<{ revision: number; modeId: string; model: RigModel }>(`/api/rigs/${rigId}/modes`, body);
+    },
     onSuccess: (result) => {
       client.setQueryData<RigModelPayload>(rigKeys.model(rigId), (old) => (old ? { ...old, revision: result.revision, model: result.model } : old));
     },

@@ -3,7 +3,9 @@
  * in the local store, hand it back when there is no network, and queue switch changes made
  * offline in the outbox (sent by the sync runner; last writer by server time wins).
  */
-import type { RigModel } from "~/engine/model";
+import { validateModel, type RigModel } from "~/engine/model";
+import { applyModeEdit, modeEditSchema } from "~/schemas/modes";
+import type { ChangePayload } from "./protocol";
 import { applyChange, type LatestReading, type RigState, type StateWrite } from "~/schemas/rig-state";
 import { localDb, type Role } from "./db.client";
 import { enqueue } from "./outbox.client";
@@ -56,4 +58,32 @@ export async function queueStateWrite(rigId: string, write: StateWrite) {
     if (local) await db.states.update(rigId, { state: applyChange(local.state, write.change) });
   });
   await enqueue(db, rigId, "state.write", write, "state");
+}
+
+/**
+ * An owner's mode edit made with no connection: applied to the phone's model and queued as a
+ * save of the as-built model. Several edits before the connection returns travel as one save
+ * built on the revision the phone had, so they cannot turn each other into drafts. If the
+ * as-built moved meanwhile, the server keeps the edit as a draft (see DEVELOPERS.md).
+ */
+export async function queueModeEdit(current: NowPayload["model"], body: unknown): Promise<{ revision: number; modeId: string; model: RigModel }> {
+  const parsed = modeEditSchema.safeParse(body);
+  if (!parsed.success) throw new Error(parsed.error.issues[0]?.message ?? "The mode is not valid.");
+  const { model, modeId, message } = applyModeEdit(current.model, parsed.data);
+  const checked = validateModel(model);
+  if (!checked.ok) throw new Error(checked.issues[0]?.message ?? "The mode does not fit the rig.");
+  const db = localDb();
+  await saveRigModel({ rigId: current.rigId, name: current.name, role: current.role, revision: current.revision, model: checked.model });
+  const waiting = await db.outbox
+    .where("[rigId+state]")
+    .equals([current.rigId, "waiting"])
+    .filter((e) => e.kind === "model.save")
+    .first();
+  if (waiting) {
+    const payload = waiting.payload as ChangePayload<"model.save">;
+    await db.outbox.update(waiting.seq!, { payload: { ...payload, document: checked.model, message: `${payload.message ?? "Saved offline"}; ${message}`.slice(0, 200) } });
+  } else {
+    await enqueue(db, current.rigId, "model.save", { baseRevision: current.revision, document: checked.model, message }, "model");
+  }
+  return { revision: current.revision, modeId, model: checked.model };
 }

@@ -71,7 +71,8 @@ export const payloadSchemas = {
   "reading.delete": z.object({ readingId: z.uuid() }),
   /** A Now-screen write (switches, mode, SoC, place): the body of POST /api/rigs/:rigId/state. */
   "state.write": stateWriteSchema,
-  "model.save": z.object({ branchId: z.uuid(), baseRevision: z.number().int().min(1), document: z.unknown(), message: z.string().max(200).optional() }),
+  /** Without a branch id the save is for the rig's as-built model. */
+  "model.save": z.object({ branchId: z.uuid().optional(), baseRevision: z.number().int().min(1), document: z.unknown(), message: z.string().max(200).optional() }),
 } satisfies Record<ChangeKind, z.ZodType>;
 
 export type ChangePayload<K extends ChangeKind> = z.infer<(typeof payloadSchemas)[K]>;

@@ -266,16 +266,18 @@ async function applyOne(ctx: Ctx, item: Parsed): Promise<ChangeResult> {
         return refused(item.id, "invalid", "The model has problems; open it to fix them.", checked.issues.map((i) => ({ path: i.path, message: i.message })));
       }
       const db = tx as unknown as Db;
+      const branchId = payload.branchId ?? (await getAsBuilt(db, rigId))?.branchId;
+      if (!branchId) return refused(item.id, "not_found", "This rig's model could not be found, so the change was not saved.");
       try {
         const saved = await saveRevision(db, {
-          branchId: payload.branchId,
+          branchId,
           expectedRevision: payload.baseRevision,
           document: checked.model,
           authorId: actor.userId,
           message: payload.message ?? "Saved offline",
         });
-        await logChanges(tx, [{ ...base, kind: "model.save", entityId: payload.branchId }]);
-        return { id: item.id, status: "applied", detail: { branchId: payload.branchId, revision: saved.revision } };
+        await logChanges(tx, [{ ...base, kind: "model.save", entityId: branchId }]);
+        return { id: item.id, status: "applied", detail: { branchId, revision: saved.revision } };
       } catch (error) {
         if (!(error instanceof StaleRevisionError)) throw error;
         // The as-built moved while this phone was offline: keep the edit as a draft to compare.

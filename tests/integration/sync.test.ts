@@ -215,6 +215,18 @@ describe("POST /api/sync's repository against PostgreSQL", () => {
     expect(onHead.results[0]).toMatchObject({ status: "applied", detail: { revision: 3 } });
   });
 
+  test("an offline save that names no branch lands on the rig's as-built model", async () => {
+    const { rig, branch, ada } = await juniperCrew(db);
+    const edited = { ...juniperModel, name: "Juniper (phone edit)" };
+    const answer = await applySync(db, { userId: ada.id, role: "owner" }, {
+      rigId: rig.id,
+      cursor: null,
+      changes: [change(rig.id, "model.save", { baseRevision: 1, document: edited })],
+    });
+    expect(answer.results[0]).toMatchObject({ status: "applied", detail: { branchId: branch.id, revision: 2 } });
+    expect(((await getAsBuilt(db, rig.id))?.document as { name: string }).name).toBe("Juniper (phone edit)");
+  });
+
   test("10,000 readings in batches of 1,000 are all stored once, with one change-log row each", async () => {
     const { rig, sam } = await juniperCrew(db);
     const all = Array.from({ length: 10_000 }, (_, i) => addChange(rig.id, juniperReading(i)));
