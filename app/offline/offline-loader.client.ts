@@ -22,3 +22,23 @@ export async function serverThenPhone<Server, Phone>(
     throw error;
   }
 }
+
+/**
+ * The rig's read views (as built, day budget) offline: the server's data when it answers, else
+ * what the phone kept for the Now screen, in a shape both views read (rig, model, revision,
+ * shared state, time).
+ */
+export async function rigReadViewLoader<Server>(rigId: string, serverLoader: () => Promise<Server>) {
+  const { readNowLocal } = await import("./now.client");
+  return serverThenPhone(serverLoader, async () => {
+    const p = await readNowLocal(rigId);
+    if (!p) return null;
+    return {
+      rig: { id: p.model.rigId, name: p.model.name },
+      model: p.model.model,
+      revision: p.model.revision,
+      state: p.shared.state,
+      nowMs: Math.floor(p.nowMs / 60_000) * 60_000,
+    };
+  });
+}

@@ -19,19 +19,8 @@ export async function loader({ request, params }: Route.LoaderArgs) {
 
 /** Offline first: the server's copy when it answers, else the one kept on the phone by Now. */
 export async function clientLoader({ params, serverLoader }: Route.ClientLoaderArgs) {
-  const [{ readNowLocal }, { serverThenPhone }] = await Promise.all([
-    import("~/offline/now.client"),
-    import("~/offline/offline-loader.client"),
-  ]);
-  return serverThenPhone(serverLoader, async () => {
-    const p = await readNowLocal(params.rigId);
-    return p ? {
-    rig: { id: p.model.rigId, name: p.model.name },
-    model: p.model.model,
-    state: p.shared.state,
-    nowMs: Math.floor(p.nowMs / 60_000) * 60_000,
-  } : null;
-  });
+  const { rigReadViewLoader } = await import("~/offline/offline-loader.client");
+  return rigReadViewLoader(params.rigId, serverLoader);
 }
 
 export function meta({ data }: Route.MetaArgs) {
