@@ -47,6 +47,17 @@ export async function lockRigLog(tx: Tx | Db, rigId: string) {
   await tx.execute(sql`select pg_advisory_xact_lock(hashtextextended(${rigId}::text, 7))`);
 }
 
+/**
+ * Puts a change made through another route (the Now screen's state or mode API) in the rig's
+ * change log, so every phone's next sync hears of it and reads that part again.
+ */
+export async function recordServerChange(db: Db, input: { rigId: string; authorId: string; kind: "state.write" | "model.save"; entityId: string }) {
+  await db.transaction(async (tx) => {
+    await lockRigLog(tx, input.rigId);
+    await logChanges(tx, [{ changeId: crypto.randomUUID(), rigId: input.rigId, kind: input.kind, entityId: input.entityId, authorId: input.authorId, clientTime: new Date() }]);
+  });
+}
+
 export async function applySync(db: Db, actor: SyncActor, request: SyncRequest, opts: { receivedAt?: Date } = {}): Promise<SyncResponse> {
   const receivedAt = opts.receivedAt ?? new Date();
   const results: (ChangeResult | undefined)[] = new Array(request.changes.length);

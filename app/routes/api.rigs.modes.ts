@@ -6,6 +6,7 @@ import { validateModel } from "~/engine/model";
 import { apiError, issuesOf, readJson } from "~/lib/http";
 import { getAsBuilt, saveRevision, StaleRevisionError } from "~/repos/rigs.server";
 import { applyModeEdit, modeEditSchema } from "~/schemas/modes";
+import { recordServerChange } from "~/repos/sync.server";
 
 /**
  * POST /api/rigs/:rigId/modes — owners save a new mode or change the hours per load in a mode.
@@ -38,6 +39,7 @@ export const action = protectedAction(async ({ request, params }: Route.ActionAr
   if (!checked.ok) return apiError(400, "invalid_mode", checked.issues[0]?.message ?? "The mode does not fit the rig.", checked.issues);
   try {
     const saved = await saveRevision(db, { branchId: asBuilt.branchId, expectedRevision: asBuilt.revision, document: checked.model, authorId: access.user.id, message });
+    await recordServerChange(db, { rigId: access.rig.id, authorId: access.user.id, kind: "model.save", entityId: asBuilt.branchId });
     return Response.json({ revision: saved.revision, modeId, model: checked.model });
   } catch (error) {
     if (error instanceof StaleRevisionError) {

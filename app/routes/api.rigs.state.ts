@@ -5,6 +5,7 @@ import { getDb } from "~/db/db.server";
 import { validateModel } from "~/engine/model";
 import { apiError, issuesOf, readJson } from "~/lib/http";
 import { getLatestReading, getRigState, writeRigState } from "~/repos/rig-state.server";
+import { recordServerChange } from "~/repos/sync.server";
 import { getAsBuilt } from "~/repos/rigs.server";
 import { checkChangeAgainstModel, stateWriteSchema } from "~/schemas/rig-state";
 
@@ -38,5 +39,7 @@ export const action = protectedAction(async ({ request, params }: Route.ActionAr
   const issues = checkChangeAgainstModel(checked.model, parsed.data.change);
   if (issues.length) return apiError(400, "invalid_change", issues[0]!.message, issues);
   const result = await writeRigState(db, { rigId: access.rig.id, userId: access.user.id, write: parsed.data, model: checked.model, receivedAt });
+  // Phones that sync hear of it too (the Now screen's own refetch covers the open screens).
+  await recordServerChange(db, { rigId: access.rig.id, authorId: access.user.id, kind: "state.write", entityId: "state" });
   return Response.json(result, { headers: noStore });
 });

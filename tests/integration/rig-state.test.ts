@@ -262,3 +262,19 @@ describe("Modes and the SoC entry", () => {
     expect((await getAsBuilt(db, j.rig.id))?.revision).toBe(3);
   });
 });
+
+describe("Shared rig state reaches phones that sync", () => {
+  test("a switch made on the Now screen is in the rig's change log, so another phone's next sync reads the state again", async () => {
+    const j = await juniper();
+    const { applySync } = await import("~/repos/sync.server");
+    // Ada's phone has synced up to now.
+    const before = await applySync(db, { userId: j.ada.id, role: "owner" }, { rigId: j.rig.id, cursor: null, changes: [] });
+    expect(before.changes).toEqual([]);
+
+    expect((await postState(j.rig.id, { cookie: j.sam.cookie, body: switchFridge(false) })).status).toBe(200);
+
+    const after = await applySync(db, { userId: j.ada.id, role: "owner" }, { rigId: j.rig.id, cursor: before.cursor, changes: [] });
+    expect(after.changes).toEqual([expect.objectContaining({ kind: "state" })]);
+    expect(after.cursor).toBeGreaterThan(before.cursor ?? 0);
+  });
+});
