@@ -54,8 +54,7 @@ async function addReading(page: Page, values: { v: string; a: string; soc: strin
   await box("Current").fill(values.a);
   if (!(await box("Note").isVisible())) await page.getByText("Time, temperature, solar, note").click();
   await box("Note").fill(values.note);
-  // Enter submits the form (the keyboard path; the button can sit under the phone's bottom bar).
-  await box("Note").press("Enter");
+  await page.getByRole("button", { name: "Save reading" }).click();
   await page.getByText("Reading saved on this phone.").waitFor();
 }
 

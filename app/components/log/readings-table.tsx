@@ -18,8 +18,10 @@ export function ReadingsTable({
   canEdit: (r: LocalReading) => boolean;
   onDelete: (r: LocalReading) => void;
 }) {
+  // "relative": the screen-reader-only labels in the cells are positioned against this scrolling
+  // box, not the page, so they cannot widen a phone's layout (which zoomed the page out).
   return (
-    <div className="overflow-x-auto rounded-2xl border border-night-700">
+    <div className="relative overflow-x-auto rounded-2xl border border-night-700">
       <table className="w-full min-w-[40rem] text-left tabular">
         <caption className="sr-only">Readings, newest first</caption>
         <thead className="bg-night-900 text-sm text-night-300">
