@@ -1,24 +1,18 @@
 // Phone layout: no page may be wider than the phone. A wider page makes the browser zoom the
 // whole page out, shrinking text and touch targets (and taps land on the wrong control).
-import { afterAll, beforeAll, describe, expect, test } from "vitest";
+import { beforeAll, describe, expect, test } from "vitest";
 import { eq } from "drizzle-orm";
-import type { Browser } from "playwright-core";
-import { baseUrl, launchBrowser, phoneContext } from "./browser";
-import { closeAuthDb, signIn } from "./auth";
-import { createDb } from "~/db/db.server";
-import { rigs, users } from "~/db/schema";
+import { baseUrl, phoneContext } from "./browser";
+import { signIn } from "./auth";
+import { setUpJuniper } from "./juniper";
+import { users } from "~/db/schema";
 import { applySync } from "~/repos/sync.server";
 
-const { db, pool } = createDb(process.env.DATABASE_URL ?? "postgres://tilldawn@127.0.0.1:54339/tilldawn_test", 2);
-let browser: Browser;
-let close: () => Promise<void>;
-let rigId: string;
+const juniper = setUpJuniper();
 
 beforeAll(async () => {
-  ({ browser, close } = await launchBrowser());
-  const [juniper] = await db.select().from(rigs).where(eq(rigs.name, "Juniper")).limit(1);
-  rigId = juniper!.id;
   // A few readings through the sync repository (so phones pull them), for rows in the logbook table.
+  const { db, rigId } = juniper;
   const [sam] = await db.select().from(users).where(eq(users.email, "sam@juniper.example"));
   const start = Date.now() - 3 * 86_400_000 - Math.floor(Math.random() * 1000) * 60_000;
   const changes = [0, 1, 2].map((i) => ({
@@ -32,20 +26,16 @@ beforeAll(async () => {
   }));
   await applySync(db, { userId: sam!.id, role: "crew" }, { rigId, cursor: null, changes });
 });
-afterAll(async () => {
-  await close?.();
-  await closeAuthDb();
-  await pool.end();
-});
 
 describe("Phone layout", () => {
   test("no page of a rig is wider than a 390-pixel phone", async () => {
+    const { browser, rigId } = juniper;
     const context = await phoneContext(browser);
     await signIn(context, "sam@juniper.example");
     const page = await context.newPage();
     for (const path of [`/rigs/${rigId}`, `/rigs/${rigId}/log`, `/rigs/${rigId}/budget`, `/rigs/${rigId}/model`, `/rigs/${rigId}/members`, "/rigs", "/account"]) {
       await page.goto(`${baseUrl()}${path}`, { waitUntil: "networkidle" });
-      if (path.endsWith("/log")) await page.getByText("layout check").first().waitFor();
+      if (path.endsWith("/log")) await page.getByRole("table", { name: "Readings, newest first" }).locator("tbody tr").first().waitFor();
       const widths = await page.evaluate(() => ({ inner: window.innerWidth, scroll: document.documentElement.scrollWidth }));
       expect({ path, ...widths }).toEqual({ path, inner: 390, scroll: 390 });
     }

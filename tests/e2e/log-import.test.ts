@@ -1,29 +1,15 @@
 // CSV import in Chromium: a generic export (invented Juniper data) with millivolts and
 // milliamps, one bad row; preview, import with progress, sync to PostgreSQL, and a second
 // import of the same file that doubles nothing.
-import { afterAll, beforeAll, describe, expect, test } from "vitest";
+import { describe, expect, test } from "vitest";
 import { and, eq, like } from "drizzle-orm";
-import type { Browser } from "playwright-core";
-import { baseUrl, launchBrowser, phoneContext } from "./browser";
-import { closeAuthDb, signIn } from "./auth";
-import { createDb } from "~/db/db.server";
-import { readings, rigs } from "~/db/schema";
+import { baseUrl, phoneContext } from "./browser";
+import { signIn } from "./auth";
+import { setUpJuniper } from "./juniper";
+import { readings } from "~/db/schema";
 
-const { db, pool } = createDb(process.env.DATABASE_URL ?? "postgres://tilldawn@127.0.0.1:54339/tilldawn_test", 2);
-let browser: Browser;
-let close: () => Promise<void>;
-let rigId: string;
-
-beforeAll(async () => {
-  ({ browser, close } = await launchBrowser());
-  const [juniper] = await db.select().from(rigs).where(eq(rigs.name, "Juniper")).limit(1);
-  rigId = juniper!.id;
-});
-afterAll(async () => {
-  await close?.();
-  await closeAuthDb();
-  await pool.end();
-});
+const juniper = setUpJuniper();
+const { db } = juniper;
 
 describe("CSV import in the logbook", () => {
   test("maps a monitor's columns, converts mV and mA, skips a bad row, syncs once, and a second import doubles nothing", async () => {
@@ -42,6 +28,7 @@ describe("CSV import in the logbook", () => {
       `${at(4)},13420,12500,85,${tag} d`,
     ].join("\n");
 
+    const { browser, rigId } = juniper;
     const context = await phoneContext(browser);
     await signIn(context, "sam@juniper.example");
     const page = await context.newPage();

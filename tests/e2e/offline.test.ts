@@ -2,48 +2,34 @@
 // network, then syncs exactly once when the connection returns — even across a server crash.
 import { spawn, type ChildProcess } from "node:child_process";
 import { fileURLToPath } from "node:url";
-import { afterAll, beforeAll, describe, expect, test } from "vitest";
+import { describe, expect, test } from "vitest";
 import { and, eq, gte, like, sql } from "drizzle-orm";
-import type { Browser, Page } from "playwright-core";
-import { baseUrl, launchBrowser, phoneContext } from "./browser";
-import { closeAuthDb, signIn } from "./auth";
-import { createDb } from "~/db/db.server";
-import { readings, rigs, switchChanges, users } from "~/db/schema";
+import type { Page } from "playwright-core";
+import { baseUrl, phoneContext } from "./browser";
+import { signIn } from "./auth";
+import { setUpJuniper } from "./juniper";
+import { readings, switchChanges, users } from "~/db/schema";
 import { createSession, SESSION_COOKIE } from "~/auth/session.server";
 
 const root = fileURLToPath(new URL("../..", import.meta.url));
-const { db, pool } = createDb(process.env.DATABASE_URL ?? "postgres://tilldawn@127.0.0.1:54339/tilldawn_test", 2);
+const juniper = setUpJuniper();
+const { db } = juniper;
 
-let browser: Browser;
-let close: () => Promise<void>;
-let rigId: string;
-
-beforeAll(async () => {
-  ({ browser, close } = await launchBrowser());
-  const [juniper] = await db.select().from(rigs).where(eq(rigs.name, "Juniper")).limit(1);
-  rigId = juniper!.id;
-});
-afterAll(async () => {
-  await close?.();
-  await closeAuthDb();
-  await pool.end();
-});
-
-const tagged = (tag: string) => db.select().from(readings).where(and(eq(readings.rigId, rigId), like(readings.note, `${tag}%`)));
+const tagged = (tag: string) => db.select().from(readings).where(and(eq(readings.rigId, juniper.rigId), like(readings.note, `${tag}%`)));
 
 /** Opens a page online until the service worker controls it and the phone's store holds the rig. */
 async function installOnline(page: Page, origin: string) {
-  await page.goto(`${origin}/rigs/${rigId}/log`);
+  await page.goto(`${origin}/rigs/${juniper.rigId}/log`);
   await page.getByRole("heading", { name: "Logbook" }).waitFor();
   await page.evaluate(() => navigator.serviceWorker.ready.then(() => undefined));
   // A second load is controlled by the worker; the pages it keeps are cached by now.
   await page.reload();
   await page.getByRole("heading", { name: "Logbook" }).waitFor();
   await expect.poll(() => page.evaluate(() => navigator.serviceWorker.controller !== null), { timeout: 10_000 }).toBe(true);
-  await page.goto(`${origin}/rigs/${rigId}`);
+  await page.goto(`${origin}/rigs/${juniper.rigId}`);
   await page.getByTestId("runway").waitFor();
   await expect
-    .poll(() => page.evaluate(async (id) => (await caches.open("tilldawn-pages").then((c) => c.keys())).some((r) => r.url.endsWith(`/rigs/${id}/log`)), rigId), { timeout: 10_000 })
+    .poll(() => page.evaluate(async (id) => (await caches.open("tilldawn-pages").then((c) => c.keys())).some((r) => r.url.endsWith(`/rigs/${id}/log`)), juniper.rigId), { timeout: 10_000 })
     .toBe(true);
 }
 
@@ -65,7 +51,7 @@ describe("Offline first in Chromium", () => {
   test("offline: reload, move between Now and the Logbook, add three readings, switch a load; online: each lands in PostgreSQL once and another member sees them", async () => {
     const tag = `e2e-offline-${Date.now()}`;
     const started = new Date();
-    const context = await phoneContext(browser);
+    const context = await phoneContext(juniper.browser);
     const samId = await signIn(context, "sam@juniper.example");
     const page = await context.newPage();
     await installOnline(page, baseUrl());
@@ -120,14 +106,14 @@ describe("Offline first in Chromium", () => {
     const switched = await db
       .select()
       .from(switchChanges)
-      .where(and(eq(switchChanges.rigId, rigId), eq(switchChanges.loadId, "water-pump"), eq(switchChanges.authorId, samId), gte(switchChanges.serverTime, started)));
+      .where(and(eq(switchChanges.rigId, juniper.rigId), eq(switchChanges.loadId, "water-pump"), eq(switchChanges.authorId, samId), gte(switchChanges.serverTime, started)));
     expect(switched.map((s) => s.on)).toEqual([!wasOn]);
 
     // Ada, on another phone, sees the three readings.
-    const other = await phoneContext(browser);
+    const other = await phoneContext(juniper.browser);
     await signIn(other, "ada@juniper.example");
     const adaPage = await other.newPage();
-    await adaPage.goto(`${baseUrl()}/rigs/${rigId}/log`);
+    await adaPage.goto(`${baseUrl()}/rigs/${juniper.rigId}/log`);
     for (const n of [1, 2, 3]) await adaPage.getByText(`${tag} #${n}`).waitFor({ timeout: 15_000 });
     await other.close();
     await context.close();
@@ -138,7 +124,7 @@ describe("Offline first in Chromium", () => {
     const origin = `http://127.0.0.1:${port}`;
     let server = await startServer(port);
     const tag = `e2e-crash-${Date.now()}`;
-    const context = await phoneContext(browser);
+    const context = await phoneContext(juniper.browser);
     const [sam] = await db.select().from(users).where(eq(users.email, "sam@juniper.example"));
     const { setCookie } = await createSession(db, sam!.id, "crash test");
     await context.addCookies([{ name: SESSION_COOKIE, value: setCookie.split(";")[0]!.slice(SESSION_COOKIE.length + 1), url: origin, httpOnly: true, sameSite: "Lax" }]);
@@ -196,7 +182,7 @@ describe("Offline first in Chromium", () => {
     expect(built.some((f) => /^rig\.log-.*\.js$/.test(f))).toBe(true);
 
     // Chromium sees the page as installable: a manifest link and an active worker controlling it.
-    const context = await phoneContext(browser);
+    const context = await phoneContext(juniper.browser);
     const page = await context.newPage();
     await page.goto(baseUrl());
     expect(await page.locator('link[rel="manifest"]').getAttribute("href")).toBe("/manifest.webmanifest");
