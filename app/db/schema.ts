@@ -304,3 +304,147 @@ export const syncChanges = pgTable(
   },
   (t) => [uniqueIndex("sync_changes_change_key").on(t.changeId), index("sync_changes_rig_cursor_idx").on(t.rigId, t.cursor)],
 );
+
+/* ------------------------------------------------------ alerts, push and devices (issue 13) */
+
+/** One browser's push subscription for one person (the endpoint is the push service's URL for it). */
+export const pushSubscriptions = pgTable(
+  "push_subscriptions",
+  {
+    id: id(),
+    userId: uuid("user_id")
+      .notNull()
+      .references(() => users.id, { onDelete: "cascade" }),
+    endpoint: text("endpoint").notNull(),
+    p256dh: text("p256dh").notNull(),
+    auth: text("auth").notNull(),
+    /** A short name of the device, from its user agent, so a person can tell their phones apart. */
+    label: text("label").notNull().default(""),
+    createdAt: createdAt(),
+    lastSentAt: timestamp("last_sent_at", { withTimezone: true }),
+  },
+  (t) => [uniqueIndex("push_subscriptions_endpoint_key").on(t.endpoint), index("push_subscriptions_user_idx").on(t.userId)],
+);
+
+/** A rig's alert rules as its owners set them (one document per rig; absent: the defaults). */
+export const alertRules = pgTable("alert_rules", {
+  rigId: uuid("rig_id")
+    .primaryKey()
+    .references(() => rigs.id, { onDelete: "cascade" }),
+  rules: jsonb("rules").$type<Record<string, unknown>>().notNull(),
+  updatedAt: timestamp("updated_at", { withTimezone: true }).notNull().defaultNow(),
+  updatedBy: uuid("updated_by").references(() => users.id, { onDelete: "set null" }),
+});
+
+/**
+ * One person's "Warn me" for one rig: which rules, quiet hours (local minutes from midnight in
+ * `timeZone`; never applied to the cutoff warning), and the channels. `unsubscribeToken` makes
+ * the one-click e-mail unsubscribe link.
+ */
+export const alertPreferences = pgTable(
+  "alert_preferences",
+  {
+    rigId: uuid("rig_id")
+      .notNull()
+      .references(() => rigs.id, { onDelete: "cascade" }),
+    userId: uuid("user_id")
+      .notNull()
+      .references(() => users.id, { onDelete: "cascade" }),
+    rules: jsonb("rules").$type<string[]>().notNull(),
+    quietStartMin: integer("quiet_start_min"),
+    quietEndMin: integer("quiet_end_min"),
+    timeZone: text("time_zone").notNull().default("UTC"),
+    push: boolean("push").notNull().default(true),
+    email: boolean("email").notNull().default(false),
+    unsubscribeToken: text("unsubscribe_token").notNull(),
+    updatedAt: timestamp("updated_at", { withTimezone: true }).notNull().defaultNow(),
+  },
+  (t) => [primaryKey({ columns: [t.rigId, t.userId] }), uniqueIndex("alert_preferences_unsubscribe_key").on(t.unsubscribeToken)],
+);
+
+/**
+ * One episode of one rule on one rig: opened when the condition starts, cleared when it ends.
+ * The partial unique index allows one open episode per rig and rule, so several servers
+ * evaluating at once open it once (and so alert once).
+ */
+export const alertEpisodes = pgTable(
+  "alert_episodes",
+  {
+    id: id(),
+    rigId: uuid("rig_id")
+      .notNull()
+      .references(() => rigs.id, { onDelete: "cascade" }),
+    rule: text("rule").notNull(),
+    startedAt: timestamp("started_at", { withTimezone: true }).notNull().defaultNow(),
+    clearedAt: timestamp("cleared_at", { withTimezone: true }),
+    title: text("title").notNull(),
+    body: text("body").notNull(),
+    clearBody: text("clear_body"),
+    detail: jsonb("detail").$type<Record<string, unknown>>().notNull().default({}),
+  },
+  (t) => [
+    uniqueIndex("alert_episodes_one_open").on(t.rigId, t.rule).where(sql`${t.clearedAt} is null`),
+    index("alert_episodes_rig_idx").on(t.rigId, t.startedAt),
+  ],
+);
+
+/** The alert log: one row per message to one person on one channel (and target device). */
+export const alertDeliveries = pgTable(
+  "alert_deliveries",
+  {
+    id: id(),
+    episodeId: uuid("episode_id")
+      .notNull()
+      .references(() => alertEpisodes.id, { onDelete: "cascade" }),
+    rigId: uuid("rig_id")
+      .notNull()
+      .references(() => rigs.id, { onDelete: "cascade" }),
+    /** "alert" when the episode opened, "clear" for its all clear. */
+    phase: text("phase").notNull(),
+    userId: uuid("user_id").references(() => users.id, { onDelete: "set null" }),
+    channel: text("channel").notNull(),
+    /** The push subscription id or the e-mail address. */
+    target: text("target").notNull(),
+    status: text("status").notNull().default("pending"),
+    attempts: integer("attempts").notNull().default(0),
+    error: text("error"),
+    createdAt: createdAt(),
+    sentAt: timestamp("sent_at", { withTimezone: true }),
+  },
+  (t) => [
+    uniqueIndex("alert_deliveries_once").on(t.episodeId, t.phase, t.channel, t.target),
+    index("alert_deliveries_rig_idx").on(t.rigId, t.createdAt),
+  ],
+);
+
+/** A token a small computer aboard uses to post readings for one rig. Only its SHA-256 is kept. */
+export const deviceTokens = pgTable(
+  "device_tokens",
+  {
+    id: id(),
+    rigId: uuid("rig_id")
+      .notNull()
+      .references(() => rigs.id, { onDelete: "cascade" }),
+    name: text("name").notNull(),
+    tokenHash: text("token_hash").notNull(),
+    createdBy: uuid("created_by").references(() => users.id, { onDelete: "set null" }),
+    createdAt: createdAt(),
+    lastUsedAt: timestamp("last_used_at", { withTimezone: true }),
+    revokedAt: timestamp("revoked_at", { withTimezone: true }),
+  },
+  (t) => [uniqueIndex("device_tokens_hash_key").on(t.tokenHash), index("device_tokens_rig_idx").on(t.rigId)],
+);
+
+/** Which device posted a logbook reading (the reading itself is an ordinary `readings` row). */
+export const deviceReadings = pgTable(
+  "device_readings",
+  {
+    readingId: uuid("reading_id")
+      .primaryKey()
+      .references(() => readings.id, { onDelete: "cascade" }),
+    deviceId: uuid("device_id")
+      .notNull()
+      .references(() => deviceTokens.id, { onDelete: "cascade" }),
+  },
+  (t) => [index("device_readings_device_idx").on(t.deviceId)],
+);

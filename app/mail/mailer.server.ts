@@ -6,7 +6,7 @@
 import nodemailer, { type Transporter } from "nodemailer";
 import { getEnv } from "~/env.server";
 
-export type Mail = { to: string; subject: string; text: string; html: string };
+export type Mail = { to: string; subject: string; text: string; html: string; headers?: Record<string, string> };
 export type MailSender = (mail: Mail) => Promise<void>;
 
 let transporter: Transporter | undefined;

@@ -1,0 +1,124 @@
+/**
+ * Which alert conditions hold for a rig now: pure, from the rig's model, shared state, recent
+ * logbook readings and rules. The runway comes from the engine's projection (through the Now
+ * screen's bridge, `computeNow`), projected forward from the newest SoC (a logbook reading or
+ * the shared state's entry, whichever is newer) with the switches that are on.
+ */
+import { computeNow, primaryBank, placeOf, type NowResult } from "~/components/now/now-model";
+import { bankNominalV } from "~/engine/battery";
+import type { RigModel } from "~/engine/model";
+import { sunPosition } from "~/engine/solar";
+import type { RigState } from "~/schemas/rig-state";
+import { defaultVoltageThreshold, type RigRules, type RuleKind } from "./rules";
+
+export type RecentReading = { takenAtMs: number; socPct: number | null; bankVoltageV: number | null; currentA: number | null };
+
+export type ConditionDetail = {
+  /** Hours of runway left now (null: beyond the projection's horizon). */
+  runwayH?: number | null;
+  /** When the bank is expected to reach its cutoff or floor (epoch ms), if within the horizon. */
+  cutoffAtMs?: number | null;
+  socPct?: number;
+  floorPct?: number;
+  voltageV?: number;
+  thresholdV?: number;
+  thresholdH?: number;
+  lastReadingAtMs?: number | null;
+  expectedNetA?: number;
+  measuredA?: number;
+  nextChargeAtMs?: number | null;
+  nextChargeKind?: string | null;
+};
+
+export type Condition = { rule: RuleKind; active: boolean; detail: ConditionDetail };
+
+export type RigSnapshot = {
+  model: RigModel;
+  state: RigState;
+  /** Newest first; the last day or so is plenty. */
+  readings: RecentReading[];
+  rules: RigRules;
+  nowMs: number;
+};
+
+/** A reading this old no longer describes the bank "now" for the voltage and charging rules. */
+const FRESH_MS = 60 * 60_000;
+
+/** The state with the newest SoC we know (a device or hand reading may be newer than the shared entry). */
+function withNewestSoc(state: RigState, readings: RecentReading[]): { state: RigState; socAtMs: number | null } {
+  const fromReading = readings.find((r) => r.socPct !== null);
+  const entryMs = state.soc ? Date.parse(state.soc.takenAt) : null;
+  if (fromReading && (entryMs === null || fromReading.takenAtMs > entryMs)) {
+    return {
+      state: { ...state, soc: { socPct: fromReading.socPct!, source: "logbook", takenAt: new Date(fromReading.takenAtMs).toISOString() } },
+      socAtMs: fromReading.takenAtMs,
+    };
+  }
+  return { state, socAtMs: entryMs };
+}
+
+export function evaluateConditions(snap: RigSnapshot): { conditions: Condition[]; now: NowResult | null } {
+  const { model, rules, nowMs, readings } = snap;
+  const bank = primaryBank(model);
+  const { state, socAtMs } = withNewestSoc(snap.state, readings);
+  const conditions: Condition[] = [];
+  const latest = readings[0] ?? null;
+  const fresh = latest && nowMs - latest.takenAtMs <= FRESH_MS ? latest : null;
+
+  // The projection from the moment of the newest SoC, so the runway runs down between readings.
+  const startMs = socAtMs !== null && socAtMs <= nowMs && nowMs - socAtMs < 48 * 3_600_000 ? socAtMs : nowMs;
+  const now = state.soc ? computeNow({ model, state, atMs: startMs }) : null;
+  const elapsedH = (nowMs - startMs) / 3_600_000;
+
+  if (now) {
+    const runwayH = now.bank.runwayH === null ? null : Math.max(0, now.bank.runwayH - elapsedH);
+    const cutoffAtMs = runwayH === null ? null : nowMs + runwayH * 3_600_000;
+    if (rules.runway_low.enabled) {
+      conditions.push({ rule: "runway_low", active: runwayH !== null && runwayH < rules.runway_low.belowH, detail: { runwayH, cutoffAtMs, thresholdH: rules.runway_low.belowH } });
+    }
+    const p = now.projection;
+    const i = Math.min(p.timesMs.length - 1, Math.max(0, Math.round((elapsedH * 60) / p.stepMin)));
+    const socNow = now.bank.socPct[i]!;
+    if (rules.soc_low.enabled) {
+      const floorPct = rules.soc_low.floorPct ?? bank.usableFloorSocPct;
+      conditions.push({ rule: "soc_low", active: socNow < floorPct, detail: { socPct: socNow, floorPct, runwayH, cutoffAtMs } });
+    }
+    if (rules.falls_short.enabled) {
+      const td = now.bank.tillDawn;
+      conditions.push({
+        rule: "falls_short",
+        active: td.nextWindowMs !== null && !td.reaches,
+        detail: { runwayH, cutoffAtMs, nextChargeAtMs: td.nextWindowMs, nextChargeKind: td.nextWindowKind },
+      });
+    }
+  }
+
+  if (rules.voltage_low.enabled) {
+    const thresholdV = rules.voltage_low.belowV ?? defaultVoltageThreshold(bankNominalV(bank));
+    const v = fresh?.bankVoltageV ?? null;
+    conditions.push({ rule: "voltage_low", active: v !== null && v < thresholdV, detail: { ...(v !== null ? { voltageV: v } : {}), thresholdV } });
+  }
+
+  if (rules.no_reading.enabled) {
+    const parked = rules.no_reading.parkedModeIds.length === 0 || rules.no_reading.parkedModeIds.includes(state.modeId ?? model.modes[0]?.id ?? "");
+    const lastMs = latest?.takenAtMs ?? null;
+    const stale = lastMs !== null && nowMs - lastMs > rules.no_reading.afterH * 3_600_000;
+    conditions.push({ rule: "no_reading", active: parked && stale, detail: { lastReadingAtMs: lastMs, thresholdH: rules.no_reading.afterH } });
+  }
+
+  if (rules.charging_stopped.enabled) {
+    // Unexpected: the sun is up, the engine expects the bank to be charging at least 1 A net
+    // right now, and a fresh reading shows no charge current at all.
+    const place = placeOf(model, state);
+    const sun = sunPosition(nowMs, place.latDeg, place.lonDeg);
+    const expected = state.soc ? computeNow({ model, state, atMs: nowMs }).present : null;
+    const measured = fresh?.currentA ?? null;
+    const active = sun.elevationDeg > 10 && expected !== null && expected.netA >= 1 && expected.solarW > 0 && measured !== null && measured <= 0;
+    conditions.push({
+      rule: "charging_stopped",
+      active,
+      detail: { ...(expected ? { expectedNetA: expected.netA } : {}), ...(measured !== null ? { measuredA: measured } : {}) },
+    });
+  }
+  return { conditions, now };
+}

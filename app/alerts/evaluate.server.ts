@@ -1,0 +1,240 @@
+/**
+ * Alert evaluation on the server: load what a rig's rules need, find which conditions hold
+ * (`evaluateConditions`), open an episode when one starts and clear it when it ends, and write
+ * the deliveries (who is told, how) in the same transaction.
+ *
+ * Exactly once across servers: an episode is opened by an INSERT that a partial unique index
+ * (one open episode per rig and rule) lets through once, and cleared by an UPDATE of the open
+ * row; only the transaction that did either writes deliveries, and each delivery is unique per
+ * episode, phase, channel and target. Several servers evaluating the same rig at once alert once.
+ */
+import { and, desc, eq, inArray, isNull, sql } from "drizzle-orm";
+import type { Db } from "~/db/db.server";
+import { alertDeliveries, alertEpisodes, alertPreferences, alertRules, modelBranches, modelRevisions, pushSubscriptions, rigMembers, rigs, users } from "~/db/schema";
+import { validateModel, type RigModel } from "~/engine/model";
+import { getRigState } from "~/repos/rig-state.server";
+import { evaluateConditions, type Condition, type RecentReading } from "./conditions";
+import { mayNotify, rulesWithDefaults, TIME_BASED_RULES, type Preferences, type RigRules, type RuleKind } from "./rules";
+import { alertText } from "./text";
+import type { RigState } from "~/schemas/rig-state";
+
+export type EvaluateOptions = {
+  appUrl: string;
+  /** Only these rules may open or clear episodes (the schedule passes the time-based ones). */
+  only?: readonly RuleKind[];
+  /** Optional: one sentence of the engine's dawn plan for this rig, added to cutoff warnings. */
+  dawnPlanLine?: (rigId: string, model: RigModel, state: RigState) => string | null;
+};
+
+export type EvaluationResult = { opened: string[]; cleared: string[]; deliveryIds: string[] };
+
+type Tx = Parameters<Parameters<Db["transaction"]>[0]>[0];
+
+const modelCache = new Map<string, RigModel | null>();
+/** Parsed as-built documents by revision id (a revision never changes). */
+function parseModel(revisionId: number, document: unknown): RigModel | null {
+  const key = String(revisionId);
+  if (modelCache.has(key)) return modelCache.get(key)!;
+  const checked = validateModel(document);
+  const model = checked.ok ? checked.model : null;
+  if (modelCache.size > 20_000) modelCache.clear();
+  modelCache.set(key, model);
+  return model;
+}
+
+async function loadAsBuilt(db: Db | Tx, rigIds: string[]) {
+  if (!rigIds.length) return new Map<string, RigModel | null>();
+  const rows = await db
+    .select({ rigId: modelBranches.rigId, id: modelRevisions.id, document: modelRevisions.document })
+    .from(modelBranches)
+    .innerJoin(modelRevisions, and(eq(modelRevisions.branchId, modelBranches.id), eq(modelRevisions.revision, modelBranches.headRevision)))
+    .where(and(inArray(modelBranches.rigId, rigIds), eq(modelBranches.kind, "as_built")));
+  return new Map(rows.map((r) => [r.rigId, parseModel(r.id, r.document)]));
+}
+
+/** The newest few readings of each rig (one index-backed lateral query for many rigs). */
+async function loadRecentReadings(db: Db | Tx, rigIds: string[], perRig = 4): Promise<Map<string, RecentReading[]>> {
+  const out = new Map<string, RecentReading[]>(rigIds.map((id) => [id, []]));
+  if (!rigIds.length) return out;
+  const rows = await db.execute<{ rig_id: string; taken_at: Date | string; soc_pct: number | null; bank_voltage_v: number | null; current_a: number | null }>(sql`
+    select r.id as rig_id, x.taken_at, x.soc_pct, x.bank_voltage_v, x.current_a
+    from unnest(${sql.param(rigIds)}::uuid[]) as r(id)
+    cross join lateral (
+      select taken_at, soc_pct, bank_voltage_v, current_a from readings
+      where rig_id = r.id and deleted_at is null
+      order by taken_at desc limit ${perRig}
+    ) x`);
+  for (const row of rows.rows) {
+    out.get(row.rig_id)!.push({
+      takenAtMs: new Date(row.taken_at).getTime(),
+      socPct: row.soc_pct,
+      bankVoltageV: row.bank_voltage_v,
+      currentA: row.current_a,
+    });
+  }
+  for (const list of out.values()) list.sort((a, b) => b.takenAtMs - a.takenAtMs);
+  return out;
+}
+
+/** Opens and clears episodes for one rig from its conditions; writes the deliveries. */
+export async function applyConditions(
+  db: Db,
+  rig: { id: string; name: string; timeZone: string },
+  conditions: Condition[],
+  nowMs: number,
+  opts: EvaluateOptions & { dawnPlan?: string | null },
+): Promise<EvaluationResult> {
+  const result: EvaluationResult = { opened: [], cleared: [], deliveryIds: [] };
+  const scoped = conditions.filter((c) => !opts.only || opts.only.includes(c.rule));
+  if (!scoped.length) return result;
+  const open = await db
+    .select({ id: alertEpisodes.id, rule: alertEpisodes.rule })
+    .from(alertEpisodes)
+    .where(and(eq(alertEpisodes.rigId, rig.id), isNull(alertEpisodes.clearedAt)));
+  const openRules = new Set(open.map((o) => o.rule));
+  const changes = scoped.filter((c) => c.active !== openRules.has(c.rule));
+  if (!changes.length) return result;
+
+  await db.transaction(async (tx) => {
+    for (const c of changes) {
+      const text = alertText(
+        { rule: c.rule, rigName: rig.name, rigId: rig.id, detail: c.detail, timeZone: rig.timeZone, appUrl: opts.appUrl, dawnPlanLine: c.rule === "runway_low" || c.rule === "falls_short" ? opts.dawnPlan : null },
+        nowMs,
+      );
+      if (c.active) {
+        const inserted = await tx.execute<{ id: string }>(sql`
+          insert into alert_episodes (rig_id, rule, started_at, title, body, clear_body, detail)
+          values (${rig.id}::uuid, ${c.rule}, ${new Date(nowMs).toISOString()}::timestamptz, ${text.title}, ${text.body}, ${text.clearBody}, ${JSON.stringify(c.detail)}::jsonb)
+          on conflict (rig_id, rule) where cleared_at is null do nothing
+          returning id`);
+        const id = inserted.rows[0]?.id;
+        if (!id) continue;
+        result.opened.push(id);
+        result.deliveryIds.push(...(await addAlertDeliveries(tx, rig.id, id, c.rule, nowMs)));
+      } else {
+        const cleared = await tx
+          .update(alertEpisodes)
+          .set({ clearedAt: new Date(nowMs) })
+          .where(and(eq(alertEpisodes.rigId, rig.id), eq(alertEpisodes.rule, c.rule), isNull(alertEpisodes.clearedAt)))
+          .returning({ id: alertEpisodes.id });
+        const id = cleared[0]?.id;
+        if (!id) continue;
+        result.cleared.push(id);
+        // The all clear goes to whoever was told (or is still being told) of the alert.
+        const rows = await tx.execute<{ id: string }>(sql`
+          insert into alert_deliveries (episode_id, rig_id, phase, user_id, channel, target)
+          select episode_id, rig_id, 'clear', user_id, channel, target from alert_deliveries
+          where episode_id = ${id}::uuid and phase = 'alert' and status not in ('quiet', 'gone')
+          on conflict do nothing
+          returning id`);
+        result.deliveryIds.push(...rows.rows.map((r) => r.id));
+      }
+    }
+  });
+  return result;
+}
+
+/** Everyone on the rig who asked to be warned of this rule, per channel and device. */
+async function addAlertDeliveries(tx: Tx, rigId: string, episodeId: string, rule: RuleKind, nowMs: number): Promise<string[]> {
+  const people = await tx
+    .select({ userId: alertPreferences.userId, prefs: alertPreferences, email: users.email })
+    .from(alertPreferences)
+    .innerJoin(rigMembers, and(eq(rigMembers.rigId, alertPreferences.rigId), eq(rigMembers.userId, alertPreferences.userId)))
+    .innerJoin(users, eq(users.id, alertPreferences.userId))
+    .where(eq(alertPreferences.rigId, rigId));
+  if (!people.length) return [];
+  const subs = await tx
+    .select({ id: pushSubscriptions.id, userId: pushSubscriptions.userId })
+    .from(pushSubscriptions)
+    .where(inArray(pushSubscriptions.userId, people.map((p) => p.userId)));
+  const rows: Array<typeof alertDeliveries.$inferInsert> = [];
+  for (const p of people) {
+    const prefs = p.prefs as unknown as Preferences;
+    if (!prefs.rules.includes(rule)) continue;
+    const status = mayNotify(prefs, rule, nowMs) ? "pending" : "quiet";
+    if (prefs.push) for (const s of subs.filter((s) => s.userId === p.userId)) rows.push({ episodeId, rigId, phase: "alert", userId: p.userId, channel: "push", target: s.id, status });
+    if (prefs.email) rows.push({ episodeId, rigId, phase: "alert", userId: p.userId, channel: "email", target: p.email, status });
+  }
+  if (!rows.length) return [];
+  const inserted = await tx.insert(alertDeliveries).values(rows).onConflictDoNothing().returning({ id: alertDeliveries.id, status: alertDeliveries.status });
+  return inserted.filter((r) => r.status === "pending").map((r) => r.id);
+}
+
+/** Evaluates one rig now (a reading or a state change arrived, or the schedule's turn). */
+export async function evaluateRig(db: Db, rigId: string, nowMs: number, opts: EvaluateOptions): Promise<EvaluationResult> {
+  const [rig] = await db.select({ id: rigs.id, name: rigs.name }).from(rigs).where(eq(rigs.id, rigId));
+  const empty: EvaluationResult = { opened: [], cleared: [], deliveryIds: [] };
+  if (!rig) return empty;
+  const model = (await loadAsBuilt(db, [rigId])).get(rigId);
+  if (!model) return empty;
+  const [state, recent, rulesRow] = await Promise.all([
+    getRigState(db, rigId),
+    loadRecentReadings(db, [rigId]),
+    db.select({ rules: alertRules.rules }).from(alertRules).where(eq(alertRules.rigId, rigId)),
+  ]);
+  const rules = rulesWithDefaults(rulesRow[0]?.rules);
+  const { conditions } = evaluateConditions({ model, state, readings: recent.get(rigId) ?? [], rules, nowMs });
+  const dawnPlan = opts.dawnPlanLine?.(rigId, model, state) ?? null;
+  return applyConditions(db, { ...rig, timeZone: model.timeZone }, conditions, nowMs, { ...opts, dawnPlan });
+}
+
+/**
+ * The schedule's pass: the time-based rules of every rig that someone asked to be warned
+ * about, in pages of `pageSize` rigs (models, states, rules and the newest readings read in
+ * one query each per page). Returns counts and the deliveries to send.
+ */
+export async function evaluateTimeBased(db: Db, nowMs: number, opts: EvaluateOptions & { pageSize?: number }) {
+  const pageSize = opts.pageSize ?? 500;
+  let after = "00000000-0000-0000-0000-000000000000";
+  const total = { rigs: 0, opened: 0, cleared: 0, deliveryIds: [] as string[] };
+  for (;;) {
+    const page = await db
+      .selectDistinct({ id: rigs.id, name: rigs.name })
+      .from(rigs)
+      .innerJoin(alertPreferences, eq(alertPreferences.rigId, rigs.id))
+      .where(sql`${rigs.id} > ${after}::uuid`)
+      .orderBy(rigs.id)
+      .limit(pageSize);
+    if (!page.length) break;
+    after = page[page.length - 1]!.id;
+    const ids = page.map((r) => r.id);
+    const [models, recent, rulesRows, stateRows] = await Promise.all([
+      loadAsBuilt(db, ids),
+      loadRecentReadings(db, ids),
+      db.select().from(alertRules).where(inArray(alertRules.rigId, ids)),
+      Promise.all(ids.map((id) => getRigState(db, id))),
+    ]);
+    const rulesBy = new Map(rulesRows.map((r) => [r.rigId, rulesWithDefaults(r.rules)]));
+    for (let i = 0; i < page.length; i++) {
+      const rig = page[i]!;
+      const model = models.get(rig.id);
+      if (!model) continue;
+      total.rigs++;
+      const rules: RigRules = rulesBy.get(rig.id) ?? rulesWithDefaults(null);
+      const state = stateRows[i]!;
+      const { conditions } = evaluateConditions({ model, state, readings: recent.get(rig.id) ?? [], rules, nowMs });
+      const r = await applyConditions(db, { ...rig, timeZone: model.timeZone }, conditions, nowMs, {
+        ...opts,
+        only: opts.only ?? TIME_BASED_RULES,
+        dawnPlan: opts.dawnPlanLine?.(rig.id, model, state) ?? null,
+      });
+      total.opened += r.opened.length;
+      total.cleared += r.cleared.length;
+      total.deliveryIds.push(...r.deliveryIds);
+    }
+    if (page.length < pageSize) break;
+  }
+  return total;
+}
+
+/** Deliveries still pending after a while (a process stopped between writing and queueing them). */
+export async function strandedDeliveries(db: Db, olderThanMs = 60_000) {
+  const rows = await db
+    .select({ id: alertDeliveries.id })
+    .from(alertDeliveries)
+    .where(and(eq(alertDeliveries.status, "pending"), sql`${alertDeliveries.createdAt} < now() - make_interval(secs => ${olderThanMs / 1000})`))
+    .orderBy(desc(alertDeliveries.createdAt))
+    .limit(1000);
+  return rows.map((r) => r.id);
+}
+
