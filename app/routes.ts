@@ -22,8 +22,13 @@ export default [
   route("rigs/:rigId/members", "routes/members.tsx"),
   route("invites/:token", "routes/invite.tsx"),
 
+  // Alerts and devices (issue 13)
+  route("rigs/:rigId/alerts", "routes/rig.alerts.tsx"),
+  route("alerts/unsubscribe/:token", "routes/alerts.unsubscribe.$token.tsx"),
+
   // Development only (404 with real SMTP settings)
   route("dev/outbox", "routes/dev.outbox.tsx"),
+  route("dev/push", "routes/dev.push.tsx"),
 
   // API (resource routes: no UI)
   route("api/health", "routes/api.health.ts"),
@@ -36,6 +41,9 @@ export default [
   route("api/rigs/:rigId/model", "routes/api.rigs.model.ts"),
   route("api/rigs/:rigId/state", "routes/api.rigs.state.ts"),
   route("api/rigs/:rigId/modes", "routes/api.rigs.modes.ts"),
+  route("api/rigs/:rigId/push", "routes/api.rigs.$rigId.push.ts"),
+  route("api/v1/rigs/:rigId/readings", "routes/api.v1.rigs.$rigId.readings.ts"),
+  route("api/v1/device-readings.schema.json", "routes/api.v1.device-readings-schema.ts"),
 
   route("*", "routes/not-found.tsx"),
 ] satisfies RouteConfig;

@@ -45,6 +45,8 @@ fi
 log "Building the app"
 npx react-router build >"$ROOT/.data/build.log" 2>&1 || { tail -n 30 "$ROOT/.data/build.log"; die "Build failed (full log: .data/build.log)"; }
 
+# The alert worker (pg-boss jobs: evaluate, the minute sweep, push and e-mail delivery).
+setsid node --import tsx scripts/worker.ts & PIDS+=($!)
 setsid ./node_modules/.bin/react-router-serve ./build/server/index.js & PIDS+=($!)
 node scripts/wait-ready.mjs "http://127.0.0.1:$PORT/api/health" 30000 || die "The server did not start"
 log "Ready in $(( $(date +%s) - started )) s: http://127.0.0.1:$PORT"

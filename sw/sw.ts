@@ -78,3 +78,46 @@ self.addEventListener("message", (event) => {
     );
   }
 });
+
+/* ---------------------------------------------------------------- alerts (issue 13) */
+// A push carries { title, body, url, tag } (JSON, encrypted by the server for this browser).
+// The notification opens the rig's Now screen: an open Tilldawn window is focused and sent
+// there, else a new one opens.
+type AlertPush = { title?: string; body?: string; url?: string; tag?: string };
+
+self.addEventListener("push", (event) => {
+  let payload: AlertPush = {};
+  try {
+    payload = (event.data?.json() ?? {}) as AlertPush;
+  } catch {
+    payload = { body: event.data?.text() ?? "" };
+  }
+  const url = payload.url && new URL(payload.url, self.location.origin).origin === self.location.origin ? payload.url : "/rigs";
+  event.waitUntil(
+    self.registration.showNotification(payload.title ?? "Tilldawn", {
+      body: payload.body ?? "",
+      tag: payload.tag,
+      icon: "/icons/icon-192.png",
+      badge: "/icons/icon-192.png",
+      data: { url },
+    }),
+  );
+});
+
+self.addEventListener("notificationclick", (event) => {
+  event.notification.close();
+  const target = new URL((event.notification.data as { url?: string } | null)?.url ?? "/rigs", self.location.origin).href;
+  event.waitUntil(
+    (async () => {
+      const windows = await self.clients.matchAll({ type: "window", includeUncontrolled: true });
+      for (const client of windows) {
+        if (new URL(client.url).origin === self.location.origin) {
+          await client.focus();
+          await client.navigate(target).catch(() => undefined);
+          return;
+        }
+      }
+      await self.clients.openWindow(target);
+    })(),
+  );
+});

@@ -8,6 +8,8 @@ import { getLatestReading, getRigState, writeRigState } from "~/repos/rig-state.
 import { recordServerChange } from "~/repos/sync.server";
 import { getAsBuilt } from "~/repos/rigs.server";
 import { checkChangeAgainstModel, stateWriteSchema } from "~/schemas/rig-state";
+import { requestEvaluation } from "~/alerts/queue.server";
+import { getEnv } from "~/env.server";
 
 const noStore = { "cache-control": "private, no-store" };
 
@@ -41,5 +43,7 @@ export const action = protectedAction(async ({ request, params }: Route.ActionAr
   const result = await writeRigState(db, { rigId: access.rig.id, userId: access.user.id, write: parsed.data, model: checked.model, receivedAt });
   // Phones that sync hear of it too (the Now screen's own refetch covers the open screens).
   await recordServerChange(db, { rigId: access.rig.id, authorId: access.user.id, kind: "state.write", entityId: "state" });
+  // Alerts (issue 13): switches, mode or SoC changed → evaluate the rig's rules soon.
+  void requestEvaluation(getEnv().DATABASE_URL, access.rig.id);
   return Response.json(result, { headers: noStore });
 });

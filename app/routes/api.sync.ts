@@ -5,6 +5,8 @@ import { getDb } from "~/db/db.server";
 import { apiError, issuesOf, readJson } from "~/lib/http";
 import { syncRequestSchema } from "~/offline/protocol";
 import { applySync } from "~/repos/sync.server";
+import { requestEvaluation } from "~/alerts/queue.server";
+import { getEnv } from "~/env.server";
 
 /** Bodies above this are refused before they are read (1,000 changes fit in well under it). */
 const MAX_BODY_BYTES = 4 * 1024 * 1024;
@@ -26,6 +28,8 @@ export const action = protectedAction(async ({ request }: Route.ActionArgs) => {
   const db = getDb();
   const access = await requireRigRole(request, parsed.data.rigId, "guest", db);
   const answer = await applySync(db, { userId: access.user.id, role: access.role }, parsed.data, { receivedAt });
+  // Alerts (issue 13): readings or state changes applied → evaluate the rig's rules soon.
+  if (answer.results.some((r) => r.status === "applied")) void requestEvaluation(getEnv().DATABASE_URL, access.rig.id);
   return Response.json({ me: { userId: access.user.id, role: access.role }, ...answer }, { headers: { "cache-control": "private, no-store" } });
 });
 

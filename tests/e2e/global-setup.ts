@@ -3,7 +3,7 @@
 import { spawn, type ChildProcess } from "node:child_process";
 import { rm } from "node:fs/promises";
 import { fileURLToPath } from "node:url";
-import { startSmtpFake } from "../../scripts/fakes";
+import { startPushFake, startSmtpFake } from "../../scripts/fakes";
 
 const root = fileURLToPath(new URL("../..", import.meta.url));
 
@@ -15,13 +15,24 @@ export default async function setup() {
   const outboxDir = `${root}.data/test/outbox`;
   await rm(outboxDir, { recursive: true, force: true });
   const smtp = await startSmtpFake({ port: Number(process.env.E2E_SMTP_PORT ?? 2599), outboxDir });
-  const fakesEnv = { SMTP_PORT: String(smtp.port), DEV_OUTBOX_DIR: outboxDir };
+  // The push fake (issue 13) and the alert worker, which sends through it.
+  const pushDir = `${root}.data/test/push`;
+  await rm(pushDir, { recursive: true, force: true });
+  const push = await startPushFake({ port: Number(process.env.PUSH_FAKE_PORT ?? 4310), dir: pushDir });
+  process.env.E2E_PUSH_URL = push.url;
+  const fakesEnv = { SMTP_PORT: String(smtp.port), DEV_OUTBOX_DIR: outboxDir, DEV_PUSH_DIR: pushDir, VAPID_KEYS_FILE: `${root}.data/test/vapid.json` };
   const server = spawn(`${root}node_modules/.bin/react-router-serve`, ["./build/server/index.js"], {
     cwd: root,
     env: { ...process.env, NODE_ENV: "production", HOST: "127.0.0.1", PORT: port, APP_URL: baseUrl, ...fakesEnv },
     stdio: ["ignore", "ignore", "inherit"],
   });
   children.push(server);
+  const worker = spawn(process.execPath, ["--import", "tsx", "scripts/worker.ts"], {
+    cwd: root,
+    env: { ...process.env, NODE_ENV: "production", APP_URL: baseUrl, ...fakesEnv },
+    stdio: ["ignore", "ignore", "inherit"],
+  });
+  children.push(worker);
   const deadline = Date.now() + 30_000;
   for (;;) {
     if (server.exitCode !== null) throw new Error(`the app server exited with ${server.exitCode}`);
@@ -36,5 +47,6 @@ export default async function setup() {
   return async () => {
     for (const child of children) child.kill("SIGTERM");
     await smtp.close();
+    await push.close();
   };
 }

@@ -94,5 +94,27 @@ export const permissionMatrix: Record<string, RouteRow> = {
   "routes/api.rigs.model.ts": { GET: { expect: members() } },
   "routes/api.rigs.state.ts": { GET: { expect: members() }, POST: { expect: crewUp(), json: () => ({}) } },
   "routes/api.rigs.modes.ts": { GET: { expect: "notAllowed" }, POST: { expect: ownerOnly(), json: () => ({}) } },
+  // Alerts and devices (issue 13)
+  "routes/rig.alerts.tsx": {
+    note: "Warn me, own choices and the alert log for every member; rules and device tokens for owners.",
+    GET: { expect: members() },
+    POST: { expect: ownerOnly(), form: () => ({ intent: "device-create", name: "" }) },
+  },
+  "routes/alerts.unsubscribe.$token.tsx": {
+    note: "The unguessable token is the authority (one-click unsubscribe from a mail program: no cookies, no CSRF check); an unknown token is 404.",
+    GET: { expect: "notFound" },
+    POST: { expect: "notFound", csrf: false },
+  },
+  "routes/dev.push.tsx": { note: "404 outside local runs.", GET: { expect: "ok" } },
+  "routes/api.rigs.$rigId.push.ts": {
+    GET: { expect: members() },
+    POST: { expect: members(), json: () => ({ intent: "subscribe" }) },
+  },
+  "routes/api.v1.rigs.$rigId.readings.ts": {
+    note: "Device ingest: a Bearer device token, never cookies (no CSRF check). Without a token every actor gets 401; tokens are tested in devices.test.ts.",
+    GET: { expect: "notAllowed" },
+    POST: { expect: { anonymous: "signin", stranger: "signin", guest: "signin", crew: "signin", owner: "signin" }, json: () => ({}), csrf: false },
+  },
+  "routes/api.v1.device-readings-schema.ts": { GET: { expect: "ok" } },
   "routes/not-found.tsx": { GET: { expect: "notFound" } },
 };

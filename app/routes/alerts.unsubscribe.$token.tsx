@@ -1,0 +1,43 @@
+import { data, Form } from "react-router";
+import type { Route } from "./+types/alerts.unsubscribe.$token";
+import { Button, Card } from "~/components/ui/form";
+import { getDb } from "~/db/db.server";
+import { findByUnsubscribeToken, unsubscribeEmailByToken } from "~/repos/alerts.server";
+
+/** GET /alerts/unsubscribe/:token — the link in every alert e-mail: a button that stops them. */
+export async function loader({ params }: Route.LoaderArgs) {
+  const row = await findByUnsubscribeToken(getDb(), String(params.token));
+  if (!row) throw data({ message: "This unsubscribe link is not valid (any more)." }, { status: 404 });
+  return { emailOn: row.email };
+}
+
+/**
+ * POST — one click (RFC 8058: mail programs POST `List-Unsubscribe=One-Click` without cookies
+ * or an Origin of ours, so no CSRF check; the unguessable token is the authority, and all it
+ * can do is turn e-mail alerts off).
+ */
+export async function action({ params }: Route.ActionArgs) {
+  const done = await unsubscribeEmailByToken(getDb(), String(params.token));
+  if (!done) throw data({ message: "This unsubscribe link is not valid (any more)." }, { status: 404 });
+  return { done: true };
+}
+
+export function meta() {
+  return [{ title: "Stop alert e-mails · Tilldawn" }, { name: "robots", content: "noindex" }];
+}
+
+export default function Unsubscribe({ loaderData, actionData }: Route.ComponentProps) {
+  const off = actionData?.done || !loaderData.emailOn;
+  return (
+    <Card>
+      <h1 className="text-2xl font-bold">Alert e-mails</h1>
+      {off ? (
+        <p role="status">E-mail alerts for this rig are off. Push alerts on your phones, if any, are unchanged.</p>
+      ) : (
+        <Form method="post">
+          <Button type="submit">Stop alert e-mails for this rig</Button>
+        </Form>
+      )}
+    </Card>
+  );
+}
