@@ -4,7 +4,8 @@
  * screen's bridge, `computeNow`), projected forward from the newest SoC (a logbook reading or
  * the shared state's entry, whichever is newer) with the switches that are on.
  */
-import { computeNow, primaryBank, placeOf, type NowResult } from "~/components/now/now-model";
+import { computeNow, graphFor, primaryBank, placeOf, toEngineState } from "~/components/now/now-model";
+import { runProjection, type Projection } from "~/engine/projection";
 import { bankNominalV } from "~/engine/battery";
 import type { RigModel } from "~/engine/model";
 import { sunPosition } from "~/engine/solar";
@@ -57,7 +58,17 @@ function withNewestSoc(state: RigState, readings: RecentReading[]): { state: Rig
   return { state, socAtMs: entryMs };
 }
 
-export function evaluateConditions(snap: RigSnapshot): { conditions: Condition[]; now: NowResult | null } {
+/**
+ * The alert pass projects 36 h in 15-minute steps (the Now screen uses 72 h in 5-minute steps):
+ * enough to reach the next charge, six times less work for the schedule's sweep of every rig.
+ */
+export const ALERT_PROJECTION = { horizonH: 36, stepMin: 15 } as const;
+
+function project(model: RigModel, state: RigState, atMs: number): Projection {
+  return runProjection(model, graphFor(model, state.positions), toEngineState(model, state, atMs), ALERT_PROJECTION);
+}
+
+export function evaluateConditions(snap: RigSnapshot): { conditions: Condition[]; projection: Projection | null } {
   const { model, rules, nowMs, readings } = snap;
   const bank = primaryBank(model);
   const { state, socAtMs } = withNewestSoc(snap.state, readings);
@@ -67,24 +78,25 @@ export function evaluateConditions(snap: RigSnapshot): { conditions: Condition[]
 
   // The projection from the moment of the newest SoC, so the runway runs down between readings.
   const startMs = socAtMs !== null && socAtMs <= nowMs && nowMs - socAtMs < 48 * 3_600_000 ? socAtMs : nowMs;
-  const now = state.soc ? computeNow({ model, state, atMs: startMs }) : null;
+  const projection = state.soc ? project(model, state, startMs) : null;
+  const pBank = projection ? projection.banks.find((b) => b.bankId === projection.primaryBankId) ?? null : null;
   const elapsedH = (nowMs - startMs) / 3_600_000;
 
-  if (now) {
-    const runwayH = now.bank.runwayH === null ? null : Math.max(0, now.bank.runwayH - elapsedH);
+  if (projection && pBank) {
+    const runwayH = pBank.runwayH === null ? null : Math.max(0, pBank.runwayH - elapsedH);
     const cutoffAtMs = runwayH === null ? null : nowMs + runwayH * 3_600_000;
     if (rules.runway_low.enabled) {
       conditions.push({ rule: "runway_low", active: runwayH !== null && runwayH < rules.runway_low.belowH, detail: { runwayH, cutoffAtMs, thresholdH: rules.runway_low.belowH } });
     }
-    const p = now.projection;
+    const p = projection;
     const i = Math.min(p.timesMs.length - 1, Math.max(0, Math.round((elapsedH * 60) / p.stepMin)));
-    const socNow = now.bank.socPct[i]!;
+    const socNow = pBank.socPct[i]!;
     if (rules.soc_low.enabled) {
       const floorPct = rules.soc_low.floorPct ?? bank.usableFloorSocPct;
       conditions.push({ rule: "soc_low", active: socNow < floorPct, detail: { socPct: socNow, floorPct, runwayH, cutoffAtMs } });
     }
     if (rules.falls_short.enabled) {
-      const td = now.bank.tillDawn;
+      const td = pBank.tillDawn;
       conditions.push({
         rule: "falls_short",
         active: td.nextWindowMs !== null && !td.reaches,
@@ -110,15 +122,16 @@ export function evaluateConditions(snap: RigSnapshot): { conditions: Condition[]
     // Unexpected: the sun is up, the engine expects the bank to be charging at least 1 A net
     // right now, and a fresh reading shows no charge current at all.
     const place = placeOf(model, state);
-    const sun = sunPosition(nowMs, place.latDeg, place.lonDeg);
-    const expected = state.soc ? computeNow({ model, state, atMs: nowMs }).present : null;
     const measured = fresh?.currentA ?? null;
-    const active = sun.elevationDeg > 10 && expected !== null && expected.netA >= 1 && expected.solarW > 0 && measured !== null && measured <= 0;
+    // The engine's present power only when it can matter (sun up, a fresh reading without charge).
+    const sunUp = measured !== null && measured <= 0 && sunPosition(nowMs, place.latDeg, place.lonDeg).elevationDeg > 10;
+    const expected = sunUp && state.soc ? computeNow({ model, state, atMs: nowMs }).present : null;
+    const active = expected !== null && expected.netA >= 1 && expected.solarW > 0;
     conditions.push({
       rule: "charging_stopped",
       active,
       detail: { ...(expected ? { expectedNetA: expected.netA } : {}), ...(measured !== null ? { measuredA: measured } : {}) },
     });
   }
-  return { conditions, now };
+  return { conditions, projection };
 }

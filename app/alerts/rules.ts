@@ -64,7 +64,9 @@ export function rulesWithDefaults(stored: unknown): RigRules {
  * 12.8 V LiFePO4 bank at 12.0 V has little left). Values from memory; owners should set their own.
  */
 export function defaultVoltageThreshold(nominalV: number): number {
-  return Math.round((nominalV / 12) * 12.0 * 10) / 10;
+  // The bank's system class (12, 24 or 48 V): a 12.8 V LiFePO4 bank is a 12 V system.
+  const systemV = Math.max(12, Math.round(nominalV / 12) * 12);
+  return Math.round((systemV / 12) * 12.0 * 10) / 10;
 }
 
 const minuteOfDay = z.coerce.number().int().min(0).max(1439);
