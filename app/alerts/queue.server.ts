@@ -18,9 +18,10 @@ import { evaluateRig, evaluateTimeBased, strandedDeliveries, type EvaluateOption
 export const QUEUE = { evaluate: "alerts-evaluate", sweep: "alerts-sweep", deliver: "alerts-deliver" } as const;
 const DELIVER_RETRIES = 5;
 
-export function createBoss(connectionString: string, role: "app" | "worker"): PgBoss {
+export function createBoss(connectionString: string, role: "app" | "worker", options: { schema?: string } = {}): PgBoss {
   const boss = new PgBoss({
     connectionString,
+    schema: options.schema ?? "pgboss",
     max: role === "app" ? 2 : 4,
     application_name: `tilldawn-${role}`,
     ...(role === "app" ? { supervise: false, schedule: false } : {}),
