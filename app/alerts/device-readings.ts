@@ -12,11 +12,13 @@ export const MAX_DEVICE_BATCH = 5000;
 
 const num = (key: keyof typeof READING_LIMITS) => {
   const { min, max, label, unit } = READING_LIMITS[key];
+  // The bank voltage's upper bound comes from the rig's bank (checkDeviceReading), not a fixed 80 V.
+  const upper = key === "bankVoltageV" ? Number.MAX_VALUE : max;
   return z
-    .number({ error: `${label} must be a number` })
-    .refine(Number.isFinite, `${label} must be a finite number`)
-    .min(min, `${label} must be at least ${min} ${unit}`)
-    .max(max, `${label} must be at most ${max} ${unit}`)
+    .number({ error: `${key}: ${label.toLowerCase()} must be a number` })
+    .refine(Number.isFinite, `${key} must be a finite number`)
+    .min(min, `${key}: ${label.toLowerCase()} must be at least ${min} ${unit}`)
+    .max(upper, `${key}: ${label.toLowerCase()} must be at most ${max} ${unit}`)
     .nullable()
     .optional();
 };
