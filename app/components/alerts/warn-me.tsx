@@ -4,6 +4,7 @@
  * push, or no service worker each get a plain message (e-mail stays available).
  */
 import { useEffect, useState } from "react";
+import { useRevalidator } from "react-router";
 import { Button, Notice } from "~/components/ui/form";
 
 type Status = "checking" | "unsupported" | "off" | "on" | "working" | "denied";
@@ -26,6 +27,8 @@ async function registration(): Promise<ServiceWorkerRegistration | null> {
 export function WarnMe({ rigId, publicKey, warned }: { rigId: string; publicKey: string; warned: boolean }) {
   const [status, setStatus] = useState<Status>("checking");
   const [message, setMessage] = useState<{ tone: "error" | "done" | "info"; text: string } | null>(null);
+  // After a change the page's loader runs again (the choices appear once "Warn me" is on).
+  const { revalidate } = useRevalidator();
 
   useEffect(() => {
     let cancelled = false;
@@ -65,6 +68,7 @@ export function WarnMe({ rigId, publicKey, warned }: { rigId: string; publicKey:
       await post({ intent: "subscribe", subscription: sub.toJSON(), timeZone: Intl.DateTimeFormat().resolvedOptions().timeZone });
       setStatus("on");
       setMessage({ tone: "done", text: "This phone will be warned before the cutoff." });
+      void revalidate();
     } catch (error) {
       setStatus("off");
       setMessage({ tone: "error", text: `Could not turn on warnings: ${(error as Error).message}` });
