@@ -46,3 +46,6 @@ node --import tsx scripts/bench-now.ts "http://127.0.0.1:$PORT"
 echo
 echo "## Offline first"
 node --expose-gc --import tsx scripts/bench-sync.ts
+echo
+echo "## Alerts and device ingest"
+node --import tsx scripts/bench-alerts.ts

@@ -10,9 +10,10 @@
  */
 import { and, desc, eq, inArray, isNull, sql } from "drizzle-orm";
 import type { Db } from "~/db/db.server";
-import { alertDeliveries, alertEpisodes, alertPreferences, alertRules, modelBranches, modelRevisions, pushSubscriptions, rigMembers, rigs, users } from "~/db/schema";
+import { alertDeliveries, alertEpisodes, alertPreferences, alertRules, modelBranches, modelRevisions, pushSubscriptions, rigMembers, rigs, rigState, users } from "~/db/schema";
 import { validateModel, type RigModel } from "~/engine/model";
-import { getRigState } from "~/repos/rig-state.server";
+import { getRigState, rowToState } from "~/repos/rig-state.server";
+import { emptyRigState } from "~/schemas/rig-state";
 import { evaluateConditions, type Condition, type RecentReading } from "./conditions";
 import { mayNotify, rulesWithDefaults, TIME_BASED_RULES, type Preferences, type RigRules, type RuleKind } from "./rules";
 import { alertText } from "./text";
@@ -82,16 +83,18 @@ export async function applyConditions(
   rig: { id: string; name: string; timeZone: string },
   conditions: Condition[],
   nowMs: number,
-  opts: EvaluateOptions & { dawnPlan?: string | null },
+  opts: EvaluateOptions & { dawnPlan?: string | null; openRules?: Set<string> },
 ): Promise<EvaluationResult> {
   const result: EvaluationResult = { opened: [], cleared: [], deliveryIds: [] };
   const scoped = conditions.filter((c) => !opts.only || opts.only.includes(c.rule));
   if (!scoped.length) return result;
-  const open = await db
-    .select({ id: alertEpisodes.id, rule: alertEpisodes.rule })
-    .from(alertEpisodes)
-    .where(and(eq(alertEpisodes.rigId, rig.id), isNull(alertEpisodes.clearedAt)));
-  const openRules = new Set(open.map((o) => o.rule));
+  // The open episodes as read before (a sweep reads a page's at once); the writes below are
+  // guarded by the database either way, so a stale view can only cost a no-op.
+  const openRules =
+    opts.openRules ??
+    new Set(
+      (await db.select({ rule: alertEpisodes.rule }).from(alertEpisodes).where(and(eq(alertEpisodes.rigId, rig.id), isNull(alertEpisodes.clearedAt)))).map((o) => o.rule),
+    );
   const changes = scoped.filter((c) => c.active !== openRules.has(c.rule));
   if (!changes.length) return result;
 
@@ -198,29 +201,39 @@ export async function evaluateTimeBased(db: Db, nowMs: number, opts: EvaluateOpt
     if (!page.length) break;
     after = page[page.length - 1]!.id;
     const ids = page.map((r) => r.id);
-    const [models, recent, rulesRows, stateRows] = await Promise.all([
+    const [models, recent, rulesRows, stateRows, openRows] = await Promise.all([
       loadAsBuilt(db, ids),
       loadRecentReadings(db, ids),
       db.select().from(alertRules).where(inArray(alertRules.rigId, ids)),
-      Promise.all(ids.map((id) => getRigState(db, id))),
+      db.select().from(rigState).where(inArray(rigState.rigId, ids)),
+      db.select({ rigId: alertEpisodes.rigId, rule: alertEpisodes.rule }).from(alertEpisodes).where(and(inArray(alertEpisodes.rigId, ids), isNull(alertEpisodes.clearedAt))),
     ]);
     const rulesBy = new Map(rulesRows.map((r) => [r.rigId, rulesWithDefaults(r.rules)]));
-    for (let i = 0; i < page.length; i++) {
-      const rig = page[i]!;
+    const stateBy = new Map(stateRows.map((r) => [r.rigId, rowToState(r, new Map())]));
+    const openBy = new Map<string, Set<string>>();
+    for (const o of openRows) (openBy.get(o.rigId) ?? openBy.set(o.rigId, new Set()).get(o.rigId)!).add(o.rule);
+    const only = opts.only ?? TIME_BASED_RULES;
+    // The engine's work first (CPU), then the few rigs whose episodes change (database), four at a time.
+    const changed: Array<() => Promise<EvaluationResult>> = [];
+    for (const rig of page) {
       const model = models.get(rig.id);
       if (!model) continue;
       total.rigs++;
       const rules: RigRules = rulesBy.get(rig.id) ?? rulesWithDefaults(null);
-      const state = stateRows[i]!;
+      const state = stateBy.get(rig.id) ?? emptyRigState(rig.id);
+      const openRules = openBy.get(rig.id) ?? new Set<string>();
       const { conditions } = evaluateConditions({ model, state, readings: recent.get(rig.id) ?? [], rules, nowMs });
-      const r = await applyConditions(db, { ...rig, timeZone: model.timeZone }, conditions, nowMs, {
-        ...opts,
-        only: opts.only ?? TIME_BASED_RULES,
-        dawnPlan: opts.dawnPlanLine?.(rig.id, model, state) ?? null,
-      });
-      total.opened += r.opened.length;
-      total.cleared += r.cleared.length;
-      total.deliveryIds.push(...r.deliveryIds);
+      if (!conditions.some((c) => only.includes(c.rule) && c.active !== openRules.has(c.rule))) continue;
+      changed.push(() =>
+        applyConditions(db, { ...rig, timeZone: model.timeZone }, conditions, nowMs, { ...opts, only, openRules, dawnPlan: opts.dawnPlanLine?.(rig.id, model, state) ?? null }),
+      );
+    }
+    for (let k = 0; k < changed.length; k += 4) {
+      for (const r of await Promise.all(changed.slice(k, k + 4).map((f) => f()))) {
+        total.opened += r.opened.length;
+        total.cleared += r.cleared.length;
+        total.deliveryIds.push(...r.deliveryIds);
+      }
     }
     if (page.length < pageSize) break;
   }

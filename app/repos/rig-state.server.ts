@@ -28,7 +28,7 @@ import {
 type Row = typeof rigState.$inferSelect;
 type FieldTime = { at: string; by: string | null; v: number };
 
-function rowToState(row: Row, names: Map<string, string>): RigState {
+export function rowToState(row: Row, names: Map<string, string>): RigState {
   const base = emptyRigState(row.rigId);
   const place = placeSchema.safeParse(row.place);
   const weather = weatherSchema.safeParse(row.weather);
