@@ -79,11 +79,11 @@ async function loadRecentReadings(db: Db | Tx, rigIds: string[], perRig = 4): Pr
 
 /** Opens and clears episodes for one rig from its conditions; writes the deliveries. */
 export async function applyConditions(
-  db: Db,
+  db: Db | Tx,
   rig: { id: string; name: string; timeZone: string },
   conditions: Condition[],
   nowMs: number,
-  opts: EvaluateOptions & { dawnPlan?: string | null; openRules?: Set<string> },
+  opts: EvaluateOptions & { dawnPlan?: string | null; openRules?: Set<string>; inTransaction?: boolean },
 ): Promise<EvaluationResult> {
   const result: EvaluationResult = { opened: [], cleared: [], deliveryIds: [] };
   const scoped = conditions.filter((c) => !opts.only || opts.only.includes(c.rule));
@@ -98,7 +98,7 @@ export async function applyConditions(
   const changes = scoped.filter((c) => c.active !== openRules.has(c.rule));
   if (!changes.length) return result;
 
-  await db.transaction(async (tx) => {
+  const write = async (tx: Tx | Db) => {
     for (const c of changes) {
       const text = alertText(
         { rule: c.rule, rigName: rig.name, rigId: rig.id, detail: c.detail, timeZone: rig.timeZone, appUrl: opts.appUrl, dawnPlanLine: c.rule === "runway_low" || c.rule === "falls_short" ? opts.dawnPlan : null },
@@ -133,12 +133,15 @@ export async function applyConditions(
         result.deliveryIds.push(...rows.rows.map((r) => r.id));
       }
     }
-  });
+  };
+  // A sweep passes its page's transaction (one commit for many rigs); alone, a transaction of its own.
+  if (opts.inTransaction) await write(db);
+  else await (db as Db).transaction(write);
   return result;
 }
 
 /** Everyone on the rig who asked to be warned of this rule, per channel and device. */
-async function addAlertDeliveries(tx: Tx, rigId: string, episodeId: string, rule: RuleKind, nowMs: number): Promise<string[]> {
+async function addAlertDeliveries(tx: Tx | Db, rigId: string, episodeId: string, rule: RuleKind, nowMs: number): Promise<string[]> {
   const people = await tx
     .select({ userId: alertPreferences.userId, prefs: alertPreferences, email: users.email })
     .from(alertPreferences)
@@ -213,8 +216,8 @@ export async function evaluateTimeBased(db: Db, nowMs: number, opts: EvaluateOpt
     const openBy = new Map<string, Set<string>>();
     for (const o of openRows) (openBy.get(o.rigId) ?? openBy.set(o.rigId, new Set()).get(o.rigId)!).add(o.rule);
     const only = opts.only ?? TIME_BASED_RULES;
-    // The engine's work first (CPU), then the few rigs whose episodes change (database), four at a time.
-    const changed: Array<() => Promise<EvaluationResult>> = [];
+    // The engine's work first (CPU), then the rigs whose episodes change, in one transaction per page.
+    const changed: Array<(tx: Tx) => Promise<EvaluationResult>> = [];
     for (const rig of page) {
       const model = models.get(rig.id);
       if (!model) continue;
@@ -224,16 +227,19 @@ export async function evaluateTimeBased(db: Db, nowMs: number, opts: EvaluateOpt
       const openRules = openBy.get(rig.id) ?? new Set<string>();
       const { conditions } = evaluateConditions({ model, state, readings: recent.get(rig.id) ?? [], rules, nowMs });
       if (!conditions.some((c) => only.includes(c.rule) && c.active !== openRules.has(c.rule))) continue;
-      changed.push(() =>
-        applyConditions(db, { ...rig, timeZone: model.timeZone }, conditions, nowMs, { ...opts, only, openRules, dawnPlan: opts.dawnPlanLine?.(rig.id, model, state) ?? null }),
+      changed.push((tx) =>
+        applyConditions(tx, { ...rig, timeZone: model.timeZone }, conditions, nowMs, { ...opts, only, openRules, inTransaction: true, dawnPlan: opts.dawnPlanLine?.(rig.id, model, state) ?? null }),
       );
     }
-    for (let k = 0; k < changed.length; k += 4) {
-      for (const r of await Promise.all(changed.slice(k, k + 4).map((f) => f()))) {
-        total.opened += r.opened.length;
-        total.cleared += r.cleared.length;
-        total.deliveryIds.push(...r.deliveryIds);
-      }
+    if (changed.length) {
+      await db.transaction(async (tx) => {
+        for (const f of changed) {
+          const r = await f(tx);
+          total.opened += r.opened.length;
+          total.cleared += r.cleared.length;
+          total.deliveryIds.push(...r.deliveryIds);
+        }
+      });
     }
     if (page.length < pageSize) break;
   }

@@ -3,6 +3,7 @@ import type { Route } from "./+types/api.rigs.$rigId.push";
 import { protectedAction } from "~/auth/csrf.server";
 import { requireRigRole } from "~/auth/guards.server";
 import { getDb } from "~/db/db.server";
+import { getEnv } from "~/env.server";
 import { apiError, issuesOf, readJson } from "~/lib/http";
 import { loadVapidKeys } from "~/push/vapid.server";
 import { ensurePreferences, getPreferences, listSubscriptions, removeSubscription, saveSubscription } from "~/repos/alerts.server";
@@ -49,6 +50,11 @@ export const action = protectedAction(async ({ request, params }: Route.ActionAr
   if (!parsed.success) return apiError(400, "invalid_subscription", "The subscription does not have the expected shape.", issuesOf(parsed.error));
   if (parsed.data.intent === "subscribe") {
     const { subscription, timeZone, label } = parsed.data;
+    // Push services are HTTPS; plain HTTP only to the local fake on loopback in local runs.
+    const endpoint = new URL(subscription.endpoint);
+    if (endpoint.protocol !== "https:" && !(getEnv().local && ["127.0.0.1", "localhost"].includes(endpoint.hostname))) {
+      return apiError(400, "invalid_subscription", "A push endpoint must be an https:// address.", [{ path: ["subscription", "endpoint"], message: "must be https" }]);
+    }
     const id = await saveSubscription(db, access.user.id, {
       endpoint: subscription.endpoint,
       p256dh: subscription.keys.p256dh,
