@@ -20,6 +20,7 @@ export default [
   route("rigs/:rigId/log/import", "routes/rig.log.import.tsx"),
   route("rigs/:rigId/log/:readingId", "routes/rig.log.$readingId.tsx"),
   route("rigs/:rigId/members", "routes/members.tsx"),
+  route("rigs/:rigId/photos", "routes/rig.photos.tsx"),
   route("invites/:token", "routes/invite.tsx"),
 
   // Development only (404 with real SMTP settings)
@@ -36,6 +37,8 @@ export default [
   route("api/rigs/:rigId/model", "routes/api.rigs.model.ts"),
   route("api/rigs/:rigId/state", "routes/api.rigs.state.ts"),
   route("api/rigs/:rigId/modes", "routes/api.rigs.modes.ts"),
+  route("api/rigs/:rigId/photos", "routes/api.rigs.photos.ts"),
+  route("api/rigs/:rigId/photos/:photoId", "routes/api.rigs.photos.$photoId.ts"),
 
   route("*", "routes/not-found.tsx"),
 ] satisfies RouteConfig;
