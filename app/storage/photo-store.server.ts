@@ -42,6 +42,8 @@ export function photoIdOfKey(key: string): string | null {
 }
 
 export function createS3PhotoStore(settings: PhotoStorageSettings): PhotoStore {
+  // The pinned SDK runs on Node.js 20 (README); its notice about later releases is not for users.
+  process.env.AWS_SDK_JS_NODE_VERSION_SUPPORT_WARNING_DISABLED ??= "true";
   const client = new S3Client({
     region: settings.region,
     endpoint: settings.endpoint,
