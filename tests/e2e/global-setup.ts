@@ -3,7 +3,7 @@
 import { spawn, type ChildProcess } from "node:child_process";
 import { rm } from "node:fs/promises";
 import { fileURLToPath } from "node:url";
-import { startSmtpFake } from "../../scripts/fakes";
+import { startS3Fake, startSmtpFake, type RunningFake } from "../../scripts/fakes";
 
 const root = fileURLToPath(new URL("../..", import.meta.url));
 
@@ -15,7 +15,8 @@ export default async function setup() {
   const outboxDir = `${root}.data/test/outbox`;
   await rm(outboxDir, { recursive: true, force: true });
   const smtp = await startSmtpFake({ port: Number(process.env.E2E_SMTP_PORT ?? 2599), outboxDir });
-  const fakesEnv = { SMTP_PORT: String(smtp.port), DEV_OUTBOX_DIR: outboxDir };
+  const s3 = await ensureS3Fake();
+  const fakesEnv = { SMTP_PORT: String(smtp.port), DEV_OUTBOX_DIR: outboxDir, PHOTOS_S3_PORT: String(s3.port), PHOTOS_S3_DIR: s3.directory };
   const server = spawn(`${root}node_modules/.bin/react-router-serve`, ["./build/server/index.js"], {
     cwd: root,
     env: { ...process.env, NODE_ENV: "production", HOST: "127.0.0.1", PORT: port, APP_URL: baseUrl, ...fakesEnv },
@@ -36,5 +37,31 @@ export default async function setup() {
   return async () => {
     for (const child of children) child.kill("SIGTERM");
     await smtp.close();
+    await s3.fake?.close();
   };
+}
+
+/**
+ * The S3 fake for photos: the one `npm test` started before seeding (PHOTOS_S3_PORT answers), or
+ * a new one on E2E_S3_PORT over the same folder, which then gets the demo photos if the seed
+ * ran without it.
+ */
+async function ensureS3Fake(): Promise<{ port: number; directory: string; fake: RunningFake | null }> {
+  const directory = process.env.PHOTOS_S3_DIR ?? `${root}.data/test/s3`;
+  const running = process.env.PHOTOS_S3_PORT;
+  if (running && (await fetch(`http://127.0.0.1:${running}/`).then(() => true, () => false))) {
+    return { port: Number(running), directory, fake: null };
+  }
+  const fake = await startS3Fake({ port: Number(process.env.E2E_S3_PORT ?? 4598), directory });
+  process.env.PHOTOS_S3_PORT = String(fake.port);
+  process.env.PHOTOS_S3_DIR = directory;
+  const { createDb } = await import("../../app/db/db.server");
+  const { seedDemoPhotos } = await import("../../scripts/seed-photos");
+  const { db, pool } = createDb(process.env.DATABASE_URL ?? "postgres://tilldawn@127.0.0.1:54339/tilldawn_test", 1);
+  try {
+    await seedDemoPhotos(db);
+  } finally {
+    await pool.end();
+  }
+  return { port: fake.port, directory, fake };
 }
