@@ -1,4 +1,4 @@
-import { useMemo, useState } from "react";
+import { useEffect, useMemo, useState } from "react";
 import { Link } from "react-router";
 import type { Route } from "./+types/rig.photos";
 import { requireRigRole } from "~/auth/guards.server";
@@ -46,13 +46,26 @@ function groupPhotos(photos: PhotoView[], parts: ModelPart[]): Group[] {
     }
     group.photos.push(photo);
   }
+  for (const g of groups.values()) g.photos.sort((a, b) => b.createdAt.localeCompare(a.createdAt));
   return [...groups.values()].sort((a, b) => a.title.localeCompare(b.title));
 }
 
 export default function RigPhotosPage({ loaderData }: Route.ComponentProps) {
   const { rig, parts, me, available } = loaderData;
   const [photos, setPhotos] = useState(loaderData.photos);
-  const groups = useMemo(() => groupPhotos(photos, parts), [photos, parts]);
+  // Groups stay on the page once shown, even when their last photo is deleted, so the strip
+  // (and its spoken "Photo deleted.") stays where the person is.
+  const [shown, setShown] = useState(loaderData.photos);
+  useEffect(() => {
+    setShown((before) => {
+      const added = photos.filter((p) => !before.some((b) => b.id === p.id));
+      return added.length ? [...before, ...added] : before;
+    });
+  }, [photos]);
+  const groups = useMemo(() => {
+    const current = new Map(photos.map((p) => [p.id, p]));
+    return groupPhotos(shown, parts).map((g) => ({ ...g, photos: g.photos.filter((p) => current.has(p.id)) }));
+  }, [photos, shown, parts]);
   const readingPhotos = photos.filter((p) => p.readingId);
   const [partId, setPartId] = useState("");
   const [place, setPlace] = useState("");

@@ -1,0 +1,92 @@
+// Photos in Chromium at phone size: the owner uploads a picture to a part of the model on the
+// rig's photos page and watches its progress bar (upload throttled through the DevTools
+// protocol so the bar is there long enough to see), then its thumbnail; a guest sees the
+// photos but cannot add any; the owner deletes the photo again.
+import { describe, expect, test } from "vitest";
+import sharp from "sharp";
+import { eq } from "drizzle-orm";
+import { baseUrl, phoneContext } from "./browser";
+import { signIn } from "./auth";
+import { setUpJuniper } from "./juniper";
+import { photos } from "~/db/schema";
+
+const juniper = setUpJuniper();
+const { db } = juniper;
+
+/** About 2 MB of noise, which PNG cannot squeeze: enough bytes for a visible upload. */
+async function noisyPng(): Promise<Buffer> {
+  return sharp({ create: { width: 900, height: 700, channels: 3, background: "#335", noise: { type: "gaussian", mean: 128, sigma: 60 } } })
+    .png()
+    .toBuffer();
+}
+
+describe("Photos on a phone", () => {
+  test("the demo rig's photos show as thumbnails, grouped by part", async () => {
+    const context = await phoneContext(juniper.browser);
+    await signIn(context, "noor@juniper.example");
+    const page = await context.newPage();
+    await page.goto(`${baseUrl()}/rigs/${juniper.rigId}/photos`);
+    await page.getByRole("heading", { level: 1, name: /photos/ }).waitFor();
+    await page.getByRole("heading", { level: 2, name: /Fuse panel/ }).waitFor();
+    await page.getByRole("heading", { level: 2, name: /House bank/ }).waitFor();
+    const thumb = page.getByRole("img", { name: "Fuse panel with the lid off" });
+    await thumb.waitFor();
+    await expect.poll(() => thumb.evaluate((img: HTMLImageElement) => img.complete && img.naturalWidth)).toBeGreaterThan(0);
+    // A guest sees, and is offered no way to add or delete.
+    expect(await page.getByText("Add photos").count()).toBe(0);
+    await page.getByRole("button", { name: "Open photo: Fuse panel with the lid off" }).click();
+    await page.getByRole("dialog").waitFor();
+    expect(await page.getByRole("button", { name: "Delete photo" }).count()).toBe(0);
+    await context.close();
+  });
+
+  test("the owner uploads a photo to a part, sees the progress bar and then the thumbnail, and deletes it", async () => {
+    const caption = `Main disconnect ${Date.now()}`;
+    const context = await phoneContext(juniper.browser);
+    await signIn(context, "ada@juniper.example");
+    const page = await context.newPage();
+    await page.goto(`${baseUrl()}/rigs/${juniper.rigId}/photos`);
+    await page.getByRole("heading", { name: "Add photos" }).waitFor();
+    await page.getByLabel("Part of the model").selectOption("sw-main");
+    await page.getByLabel("Caption for the next photo (optional)").first().fill(caption);
+
+    // Slow the upload to about 400 KB/s so the bar is on screen for several seconds.
+    const cdp = await context.newCDPSession(page);
+    await cdp.send("Network.enable");
+    await cdp.send("Network.emulateNetworkConditions", { offline: false, latency: 20, downloadThroughput: -1, uploadThroughput: 400 * 1024 });
+
+    const picture = await noisyPng();
+    await page.locator('input[type="file"]').first().setInputFiles({ name: "disconnect.png", mimeType: "image/png", buffer: picture });
+    const bar = page.getByRole("progressbar", { name: "Uploading disconnect.png" });
+    await bar.waitFor();
+    const seen = new Set<number>();
+    for (let i = 0; i < 40 && (await bar.count()) > 0; i++) {
+      const value = await bar.evaluate((el: HTMLProgressElement) => el.value).catch(() => null);
+      if (value !== null) seen.add(value);
+      await page.waitForTimeout(100);
+    }
+    // The bar moved: it showed a value between empty and full along the way.
+    expect([...seen].some((v) => v > 0 && v < 100)).toBe(true);
+
+    const thumb = page.getByRole("img", { name: caption });
+    await thumb.first().waitFor({ timeout: 30_000 });
+    await expect.poll(() => thumb.first().evaluate((img: HTMLImageElement) => img.complete && img.naturalWidth), { timeout: 15_000 }).toBeGreaterThan(0);
+    expect(await bar.count()).toBe(0);
+    await cdp.send("Network.emulateNetworkConditions", { offline: false, latency: 0, downloadThroughput: -1, uploadThroughput: -1 });
+
+    const [row] = await db.select().from(photos).where(eq(photos.caption, caption));
+    expect(row).toMatchObject({ partId: "sw-main", partKind: "switch", mime: "image/png", width: 900, height: 700 });
+
+    // After a reload it is listed under its part; then the owner deletes it.
+    await page.reload();
+    await page.getByRole("heading", { level: 2, name: /Main disconnect/ }).waitFor();
+    page.on("dialog", (d) => void d.accept());
+    await page.getByRole("button", { name: `Open photo: ${caption}` }).click();
+    await page.getByRole("dialog").getByRole("button", { name: "Delete photo" }).click();
+    await page.getByRole("status").filter({ hasText: "Photo deleted." }).waitFor({ state: "attached" });
+    await expect.poll(() => page.getByRole("img", { name: caption }).count()).toBe(0);
+    await page.getByText("No photos yet.").waitFor();
+    expect(await db.select().from(photos).where(eq(photos.caption, caption))).toEqual([]);
+    await context.close();
+  });
+});
