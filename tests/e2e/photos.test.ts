@@ -48,6 +48,7 @@ describe("Photos on a phone", () => {
     await page.goto(`${baseUrl()}/rigs/${juniper.rigId}/photos`);
     await page.getByRole("heading", { name: "Add photos" }).waitFor();
     await page.getByLabel("Part of the model").selectOption("sw-main");
+    await page.getByText("Caption and location").first().click();
     await page.getByLabel("Caption for the next photo (optional)").first().fill(caption);
 
     // Slow the upload to about 400 KB/s so the bar is on screen for several seconds.

@@ -10,7 +10,7 @@
  * elements and the outcome of each upload and delete from a polite live region. In night mode
  * the pictures are tinted red so they do not spoil night vision.
  */
-import { useEffect, useId, useRef, useState } from "react";
+import { useEffect, useId, useRef, useState, type ImgHTMLAttributes } from "react";
 import type { Role } from "~/auth/roles";
 import { Button } from "~/components/ui/button";
 import { Sheet } from "~/components/ui/sheet";
@@ -36,7 +36,18 @@ export type PhotoStripProps = {
 
 type Upload = { key: string; name: string; preview: string; fraction: number; error: string | null; handle: UploadHandle | null };
 
-const nightTint = "[html.night_&]:[filter:grayscale(1)_sepia(1)_saturate(8)_hue-rotate(-45deg)_brightness(0.6)]";
+/**
+ * A picture that turns red-only in night mode: greyscale, then multiplied by red, so no green or
+ * blue light reaches the eye.
+ */
+function NightSafeImg({ className, wrapperClassName, alt, ...props }: ImgHTMLAttributes<HTMLImageElement> & { wrapperClassName?: string }) {
+  return (
+    <span className={cn("relative block overflow-hidden rounded-lg", wrapperClassName)}>
+      <img alt={alt} className={cn("block [html.night_&]:brightness-75 [html.night_&]:grayscale", className)} {...props} />
+      <span aria-hidden className="pointer-events-none absolute inset-0 hidden bg-[#ff0000] mix-blend-multiply [html.night_&]:block" />
+    </span>
+  );
+}
 
 export function photoLabel(photo: PhotoView, index: number): string {
   return photo.caption || photo.place || `Photo ${index + 1}`;
@@ -179,7 +190,7 @@ export function PhotoStrip({ rigId, target, title, headingLevel = 3, photos: giv
         <ul className="flex gap-2 overflow-x-auto pb-1" aria-label={`${title}: photos`}>
           {uploads.map((u) => (
             <li key={u.key} className="w-32 shrink-0 space-y-1 rounded-xl border border-night-600 bg-night-900 p-1" data-upload>
-              <img src={u.preview} alt="" className={cn("h-24 w-full rounded-lg object-cover opacity-70", nightTint)} />
+              <NightSafeImg src={u.preview} alt="" className="h-24 w-full object-cover opacity-70" />
               {u.error ? (
                 <>
                   <p role="alert" className="text-xs text-ember-300">{u.error}</p>
@@ -209,13 +220,13 @@ export function PhotoStrip({ rigId, target, title, headingLevel = 3, photos: giv
                 className="block rounded-xl border border-night-600 p-0.5 hover:border-dawn-500"
                 aria-label={`Open photo: ${photoLabel(photo, i)}`}
               >
-                <img
+                <NightSafeImg
                   src={photo.thumbUrl}
                   alt={photoLabel(photo, i)}
                   loading="lazy"
                   width={Math.round((photo.width / Math.max(photo.width, photo.height)) * 128)}
                   height={Math.round((photo.height / Math.max(photo.width, photo.height)) * 128)}
-                  className={cn("h-24 w-auto rounded-lg object-cover", nightTint)}
+                  className="h-24 w-auto object-cover"
                 />
               </button>
             </li>
@@ -223,36 +234,49 @@ export function PhotoStrip({ rigId, target, title, headingLevel = 3, photos: giv
         </ul>
       ) : null}
       {canAdd ? (
-        <div className="flex flex-wrap items-end gap-2">
-          <label className="inline-flex min-h-12 cursor-pointer items-center rounded-xl bg-dawn-500 px-4 font-bold text-night-950 focus-within:outline-3 focus-within:outline-offset-2 focus-within:outline-dawn-400 hover:bg-dawn-400" htmlFor={inputId}>
-            Add photos
-            <input
-              id={inputId}
-              ref={inputRef}
-              type="file"
-              accept={PHOTO_ACCEPT}
-              multiple
-              className="sr-only"
-              onChange={(e) => start(e.currentTarget.files)}
-              aria-describedby={`${inputId}-help`}
-            />
-          </label>
-          <label className="block min-w-40 flex-1 text-sm font-bold">
-            Caption for the next photo (optional)
-            <input
-              value={caption}
-              onChange={(e) => setCaption(e.currentTarget.value)}
-              maxLength={CAPTION_MAX}
-              className="block min-h-12 w-full rounded-xl border border-night-600 bg-night-950 px-3 text-base font-normal"
-            />
-          </label>
-          {mayKeepLocation(me?.role) ? (
-            <label className="flex min-h-12 items-center gap-2 text-sm">
-              <input type="checkbox" checked={keepLocation} onChange={(e) => setKeepLocation(e.currentTarget.checked)} className="size-5 accent-dawn-500" />
-              Keep the photo’s location (GPS) in the file
+        <div className="space-y-2">
+          <div className="flex flex-wrap items-start gap-2">
+            <label
+              className="inline-flex min-h-12 cursor-pointer items-center rounded-xl bg-dawn-500 px-4 font-bold text-night-950 focus-within:outline-3 focus-within:outline-offset-2 focus-within:outline-dawn-400 hover:bg-dawn-400"
+              htmlFor={inputId}
+            >
+              Add photos
+              <input
+                id={inputId}
+                ref={inputRef}
+                type="file"
+                accept={PHOTO_ACCEPT}
+                multiple
+                className="sr-only"
+                onChange={(e) => start(e.currentTarget.files)}
+                aria-describedby={`${inputId}-help`}
+              />
             </label>
-          ) : null}
-          <p id={`${inputId}-help`} className="w-full text-xs text-night-300">
+            <details className="min-w-0 flex-1 rounded-xl border border-night-700">
+              <summary className="flex min-h-12 cursor-pointer items-center px-3 font-bold text-night-200">
+                {mayKeepLocation(me?.role) ? "Caption and location" : "Caption"}
+                {caption || keepLocation ? <span className="ml-2 text-sm font-normal text-dawn-300">(set)</span> : null}
+              </summary>
+              <div className="space-y-2 px-3 pb-3">
+                <label className="block text-sm font-bold">
+                  Caption for the next photo (optional)
+                  <input
+                    value={caption}
+                    onChange={(e) => setCaption(e.currentTarget.value)}
+                    maxLength={CAPTION_MAX}
+                    className="block min-h-12 w-full rounded-xl border border-night-600 bg-night-950 px-3 text-base font-normal"
+                  />
+                </label>
+                {mayKeepLocation(me?.role) ? (
+                  <label className="flex min-h-12 items-center gap-2 text-sm">
+                    <input type="checkbox" checked={keepLocation} onChange={(e) => setKeepLocation(e.currentTarget.checked)} className="size-5 accent-dawn-500" />
+                    Keep the photo’s location (GPS) in the file
+                  </label>
+                ) : null}
+              </div>
+            </details>
+          </div>
+          <p id={`${inputId}-help`} className="text-xs text-night-300">
             JPEG, PNG or WebP up to {fmtBytes(PHOTO_MAX_BYTES)}. The location a camera writes into a photo is removed{mayKeepLocation(me?.role) ? " unless you keep it" : ""}.
           </p>
         </div>
@@ -261,7 +285,14 @@ export function PhotoStrip({ rigId, target, title, headingLevel = 3, photos: giv
       <Sheet open={open !== null} onClose={() => setOpen(null)} title={open ? photoLabel(open, list.indexOf(open)) : "Photo"}>
         {open ? (
           <div className="space-y-3">
-            <img src={open.url} alt={photoLabel(open, list.indexOf(open))} width={open.width} height={open.height} className={cn("h-auto max-h-[60dvh] w-full rounded-xl object-contain", nightTint)} />
+            <NightSafeImg
+              src={open.url}
+              alt={photoLabel(open, list.indexOf(open))}
+              width={open.width}
+              height={open.height}
+              wrapperClassName="rounded-xl"
+              className="h-auto max-h-[60dvh] w-full object-contain"
+            />
             <p className="text-sm text-night-200">
               {open.place ? `${open.place} · ` : ""}
               {open.width} × {open.height} px, {fmtBytes(open.bytes)}
