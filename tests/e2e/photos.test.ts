@@ -4,11 +4,11 @@
 // photos but cannot add any; the owner deletes the photo again.
 import { describe, expect, test } from "vitest";
 import sharp from "sharp";
-import { eq } from "drizzle-orm";
+import { and, eq, like } from "drizzle-orm";
 import { baseUrl, phoneContext } from "./browser";
 import { signIn } from "./auth";
 import { setUpJuniper } from "./juniper";
-import { photos } from "~/db/schema";
+import { photos, readings } from "~/db/schema";
 
 const juniper = setUpJuniper();
 const { db } = juniper;
@@ -88,6 +88,41 @@ describe("Photos on a phone", () => {
     await expect.poll(() => page.getByRole("img", { name: caption }).count()).toBe(0);
     await page.getByText("No photos yet.").waitFor();
     expect(await db.select().from(photos).where(eq(photos.caption, caption))).toEqual([]);
+    await context.close();
+  });
+
+  test("crew add a photo to a logbook reading on the reading's page", async () => {
+    const note = `photo-reading-${Date.now()}`;
+    const context = await phoneContext(juniper.browser);
+    await signIn(context, "sam@juniper.example");
+    const page = await context.newPage();
+    await page.goto(`${baseUrl()}/rigs/${juniper.rigId}/log`);
+    await page.getByRole("heading", { name: "Logbook" }).waitFor();
+    const box = (name: string) => page.getByRole("textbox", { name, exact: true });
+    await box("Bank voltage").fill("13.21");
+    await box("State of charge").fill("81");
+    await box("Current").fill("3.5");
+    if (!(await box("Note").isVisible())) await page.getByText("Time, temperature, solar, note").click();
+    await box("Note").fill(note);
+    await page.getByRole("button", { name: "Save reading" }).click();
+    await page.getByText("Reading saved on this phone.").waitFor();
+    // The photo needs the reading on the server: wait for the sync.
+    const synced = () => db.select().from(readings).where(and(eq(readings.rigId, juniper.rigId), like(readings.note, note)));
+    await expect.poll(async () => (await synced()).length, { timeout: 20_000 }).toBe(1);
+    const [reading] = await synced();
+
+    await page.goto(`${baseUrl()}/rigs/${juniper.rigId}/log/${reading!.id}`);
+    await page.getByRole("heading", { name: /Photos of this reading/ }).waitFor();
+    await page.getByText("No photos of this reading.").waitFor();
+    // Crew cannot keep a location, so only the caption is offered.
+    expect(await page.getByText("Caption and location").count()).toBe(0);
+    const picture = await sharp({ create: { width: 320, height: 240, channels: 3, background: "#a85d05" } }).webp().toBuffer();
+    await page.locator('input[type="file"]').setInputFiles({ name: "monitor.webp", mimeType: "image/webp", buffer: picture });
+    const thumb = page.getByRole("img", { name: "Photo 1" });
+    await thumb.waitFor({ timeout: 20_000 });
+    await expect.poll(() => thumb.evaluate((img: HTMLImageElement) => img.complete && img.naturalWidth)).toBeGreaterThan(0);
+    const [row] = await db.select().from(photos).where(eq(photos.readingId, reading!.id));
+    expect(row).toMatchObject({ mime: "image/webp", partId: null, width: 320, height: 240 });
     await context.close();
   });
 });
