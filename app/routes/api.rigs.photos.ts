@@ -43,7 +43,9 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   const parsed = listQuery.safeParse(queryOf(request));
   if (!parsed.success) return apiError(400, "invalid_query", "The photo filter does not have the expected shape.", issuesOf(parsed.error));
   const photos = await listPhotos(db, access.rig.id, parsed.data);
-  return Response.json({ photos, me: { userId: access.user.id, role: access.role }, available: getPhotoStore() !== null }, { headers: noStore });
+  const store = getPhotoStore();
+  if (store) startPhotoSweeper(db, store);
+  return Response.json({ photos, me: { userId: access.user.id, role: access.role }, available: store !== null }, { headers: noStore });
 }
 
 /**

@@ -32,6 +32,8 @@ describe("Photos on a phone", () => {
     const thumb = page.getByRole("img", { name: "Fuse panel with the lid off" });
     await thumb.waitFor();
     await expect.poll(() => thumb.evaluate((img: HTMLImageElement) => img.complete && img.naturalWidth)).toBeGreaterThan(0);
+    const widths = await page.evaluate(() => ({ inner: window.innerWidth, scroll: document.documentElement.scrollWidth }));
+    expect(widths).toEqual({ inner: 390, scroll: 390 });
     // A guest sees, and is offered no way to add or delete.
     expect(await page.getByText("Add photos").count()).toBe(0);
     await page.getByRole("button", { name: "Open photo: Fuse panel with the lid off" }).click();
@@ -73,6 +75,8 @@ describe("Photos on a phone", () => {
     await thumb.first().waitFor({ timeout: 30_000 });
     await expect.poll(() => thumb.first().evaluate((img: HTMLImageElement) => img.complete && img.naturalWidth), { timeout: 15_000 }).toBeGreaterThan(0);
     expect(await bar.count()).toBe(0);
+    // The page with the add form and a new group still fits a 390-pixel phone.
+    expect(await page.evaluate(() => document.documentElement.scrollWidth)).toBe(390);
     await cdp.send("Network.emulateNetworkConditions", { offline: false, latency: 0, downloadThroughput: -1, uploadThroughput: -1 });
 
     const [row] = await db.select().from(photos).where(eq(photos.caption, caption));
