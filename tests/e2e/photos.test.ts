@@ -8,7 +8,11 @@ import { and, eq, like } from "drizzle-orm";
 import { baseUrl, phoneContext } from "./browser";
 import { signIn } from "./auth";
 import { setUpJuniper } from "./juniper";
-import { photos, readings } from "~/db/schema";
+import http from "node:http";
+import { photos, readings, users } from "~/db/schema";
+import { createSession } from "~/auth/session.server";
+import { createS3PhotoStore } from "~/storage/photo-store.server";
+import { FAKE_S3_BUCKET, FAKE_S3_CREDENTIALS } from "~/env.server";
 
 const juniper = setUpJuniper();
 const { db } = juniper;
@@ -128,5 +132,42 @@ describe("Photos on a phone", () => {
     const [row] = await db.select().from(photos).where(eq(photos.readingId, reading!.id));
     expect(row).toMatchObject({ mime: "image/webp", partId: null, width: 320, height: 240 });
     await context.close();
+  });
+
+  test("a phone that hangs up half-way through an upload leaves no row and no object on the real server", async () => {
+    // The global set-up put the S3 fake's port in the environment.
+    const store = createS3PhotoStore({
+      bucket: FAKE_S3_BUCKET,
+      endpoint: `http://127.0.0.1:${process.env.PHOTOS_S3_PORT}`,
+      region: "us-east-1",
+      credentials: { ...FAKE_S3_CREDENTIALS },
+      forcePathStyle: true,
+      fake: true,
+    });
+    const objects = async () => {
+      const keys: string[] = [];
+      for await (const o of store.list(`photos/${juniper.rigId}/`)) keys.push(o.key);
+      return keys.sort();
+    };
+    const rows = async () => (await db.select({ id: photos.id }).from(photos).where(eq(photos.rigId, juniper.rigId))).length;
+    const before = { rows: await rows(), objects: await objects() };
+    const [ada] = await db.select().from(users).where(eq(users.email, "ada@juniper.example"));
+    const { setCookie } = await createSession(db, ada!.id, "browser test: abandoned upload");
+    const url = new URL(`/api/rigs/${juniper.rigId}/photos?partId=fuse-panel`, baseUrl());
+    const outcome = await new Promise<string>((resolve) => {
+      const req = http.request(url, {
+        method: "POST",
+        headers: { cookie: setCookie.split(";")[0]!, origin: url.origin, "content-type": "image/jpeg", "content-length": String(5 * 1024 * 1024) },
+      });
+      req.on("response", (res) => resolve(`answered ${res.statusCode}`));
+      req.on("error", () => resolve("hung up"));
+      req.write(Buffer.alloc(1024 * 1024, 0xff), () => setTimeout(() => req.destroy(), 200));
+    });
+    expect(outcome).toBe("hung up");
+    await new Promise((r) => setTimeout(r, 1000));
+    expect(await rows()).toBe(before.rows);
+    expect(await objects()).toEqual(before.objects);
+    // The server is still well.
+    expect((await fetch(new URL("/api/health", baseUrl()))).status).toBe(200);
   });
 });
