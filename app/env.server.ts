@@ -13,6 +13,81 @@ import { z } from "zod";
 const DEV_SESSION_SECRET = "tilldawn-development-session-secret-not-for-production";
 const DEV_TOTP_SECRET = "7d1c0a5e3b9f4e2d8c6a1f0b3e5d7c9a2b4d6f8e0a1c3e5b7d9f1a3c5e7b9d0f";
 
+/* ------------------------------------------------------------------ photo storage
+ * Photos go to an S3-compatible bucket through @aws-sdk/client-s3 (path-style addressing when
+ * an endpoint is given). A local run with no PHOTOS_S3_* settings uses the S3 fake that
+ * scripts/fakes.ts starts on 127.0.0.1:PHOTOS_S3_PORT. In production, set PHOTOS_S3_BUCKET (and
+ * PHOTOS_S3_ENDPOINT for a store other than AWS); without it photos are off (503). See README.
+ */
+const photoEnvShape = {
+  /** The bucket. Required for real storage; locally defaults to the fake's bucket. */
+  PHOTOS_S3_BUCKET: z.string().regex(/^[a-z0-9][a-z0-9.-]{1,61}[a-z0-9]$/, "must be an S3 bucket name").optional(),
+  /** The store's endpoint, e.g. https://s3.eu-central-1.example.com. Unset: AWS (or the local fake). */
+  PHOTOS_S3_ENDPOINT: z.url({ protocol: /^https?$/, message: "must be an http:// or https:// URL" }).optional(),
+  PHOTOS_S3_REGION: z.string().min(1).default("us-east-1"),
+  PHOTOS_S3_ACCESS_KEY_ID: z.string().min(1).optional(),
+  PHOTOS_S3_SECRET_ACCESS_KEY: z.string().min(1).optional(),
+  /** "true" addresses the bucket in the path (most S3-compatible stores); default true with an endpoint. */
+  PHOTOS_S3_FORCE_PATH_STYLE: z.enum(["true", "false"]).optional(),
+  /** Port of the local S3 fake (used only while no PHOTOS_S3_ENDPOINT/BUCKET is set on a local run). */
+  PHOTOS_S3_PORT: z.coerce.number().int().min(1).max(65535).default(4569),
+  /** Where the local S3 fake keeps its objects. */
+  PHOTOS_S3_DIR: z.string().min(1).default(".data/s3"),
+};
+
+type PhotoEnv = z.infer<z.ZodObject<typeof photoEnvShape>>;
+
+/** The fake's fixed credentials (s3rver accepts these). Local use only. */
+export const FAKE_S3_CREDENTIALS = { accessKeyId: "S3RVER", secretAccessKey: "S3RVER" } as const;
+export const FAKE_S3_BUCKET = "tilldawn-photos";
+
+export type PhotoStorageSettings = {
+  bucket: string;
+  endpoint?: string;
+  region: string;
+  credentials?: { accessKeyId: string; secretAccessKey: string };
+  forcePathStyle: boolean;
+  /** True when this is the local fake. */
+  fake: boolean;
+};
+
+function checkPhotoEnv(env: PhotoEnv, ctx: z.RefinementCtx, local: boolean) {
+  if (Boolean(env.PHOTOS_S3_ACCESS_KEY_ID) !== Boolean(env.PHOTOS_S3_SECRET_ACCESS_KEY)) {
+    ctx.addIssue({ code: "custom", path: ["PHOTOS_S3_SECRET_ACCESS_KEY"], message: "set both PHOTOS_S3_ACCESS_KEY_ID and PHOTOS_S3_SECRET_ACCESS_KEY, or neither" });
+  }
+  const anyReal = env.PHOTOS_S3_ENDPOINT || env.PHOTOS_S3_ACCESS_KEY_ID || env.PHOTOS_S3_SECRET_ACCESS_KEY;
+  if (anyReal && !env.PHOTOS_S3_BUCKET && !local) {
+    ctx.addIssue({ code: "custom", path: ["PHOTOS_S3_BUCKET"], message: "is required with the other PHOTOS_S3_* settings (see README, Photos)" });
+  }
+}
+
+/** Where photos go: the configured bucket, the local fake, or null (photos off). */
+function photoStorageOf(env: PhotoEnv, local: boolean): PhotoStorageSettings | null {
+  const configured = Boolean(env.PHOTOS_S3_BUCKET || env.PHOTOS_S3_ENDPOINT);
+  if (!configured && !local) return null;
+  if (!configured) {
+    return {
+      bucket: FAKE_S3_BUCKET,
+      endpoint: `http://127.0.0.1:${env.PHOTOS_S3_PORT}`,
+      region: env.PHOTOS_S3_REGION,
+      credentials: { ...FAKE_S3_CREDENTIALS },
+      forcePathStyle: true,
+      fake: true,
+    };
+  }
+  return {
+    bucket: env.PHOTOS_S3_BUCKET ?? FAKE_S3_BUCKET,
+    endpoint: env.PHOTOS_S3_ENDPOINT,
+    region: env.PHOTOS_S3_REGION,
+    credentials:
+      env.PHOTOS_S3_ACCESS_KEY_ID && env.PHOTOS_S3_SECRET_ACCESS_KEY
+        ? { accessKeyId: env.PHOTOS_S3_ACCESS_KEY_ID, secretAccessKey: env.PHOTOS_S3_SECRET_ACCESS_KEY }
+        : undefined,
+    forcePathStyle: env.PHOTOS_S3_FORCE_PATH_STYLE ? env.PHOTOS_S3_FORCE_PATH_STYLE === "true" : Boolean(env.PHOTOS_S3_ENDPOINT),
+    fake: false,
+  };
+}
+
 const envSchema = z
   .object({
     NODE_ENV: z.enum(["development", "production", "test"]).default("development"),
@@ -41,8 +116,10 @@ const envSchema = z
     /** Sign-in codes one e-mail address / one client address may request per 15 minutes. */
     SIGN_IN_CODES_PER_EMAIL: z.coerce.number().int().min(1).default(5),
     SIGN_IN_CODES_PER_ADDRESS: z.coerce.number().int().min(1).default(20),
+    ...photoEnvShape,
   })
   .superRefine((env, ctx) => {
+    checkPhotoEnv(env, ctx, isLocal(env));
     if (isLocal(env)) return;
     const required = ["APP_URL", "SESSION_SECRET", "TOTP_SECRET", "SMTP_URL"] as const;
     for (const key of required) {
@@ -63,6 +140,7 @@ const envSchema = z
       /** True while e-mail goes to the local fake: the /dev/outbox page is on. */
       devOutbox: !env.SMTP_URL,
       local,
+      photos: photoStorageOf(env, local),
     };
   });
 

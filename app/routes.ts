@@ -20,6 +20,7 @@ export default [
   route("rigs/:rigId/log/import", "routes/rig.log.import.tsx"),
   route("rigs/:rigId/log/:readingId", "routes/rig.log.$readingId.tsx"),
   route("rigs/:rigId/members", "routes/members.tsx"),
+  route("rigs/:rigId/photos", "routes/rig.photos.tsx"),
   route("invites/:token", "routes/invite.tsx"),
 
   // Alerts and devices (issue 13)
@@ -44,6 +45,8 @@ export default [
   route("api/rigs/:rigId/push", "routes/api.rigs.$rigId.push.ts"),
   route("api/v1/rigs/:rigId/readings", "routes/api.v1.rigs.$rigId.readings.ts"),
   route("api/v1/device-readings.schema.json", "routes/api.v1.device-readings-schema.ts"),
+  route("api/rigs/:rigId/photos", "routes/api.rigs.photos.ts"),
+  route("api/rigs/:rigId/photos/:photoId", "routes/api.rigs.photos.$photoId.ts"),
 
   route("*", "routes/not-found.tsx"),
 ] satisfies RouteConfig;

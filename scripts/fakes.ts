@@ -173,6 +173,27 @@ export async function startPushFake(options: { port: number; dir: string; host?:
 
 /* ---------------------------------------------------------------- end of push */
 
+/* ------------------------------------------------------------------ S3 (photos)
+ * An S3-compatible store on 127.0.0.1:PHOTOS_S3_PORT (default 4569) with one bucket, its objects
+ * in PHOTOS_S3_DIR (default .data/s3). Path-style addressing; credentials S3RVER / S3RVER.
+ */
+export async function startS3Fake(options: { port: number; directory: string; bucket?: string; host?: string }): Promise<RunningFake> {
+  const { default: S3rver } = await import("s3rver");
+  const { FAKE_S3_BUCKET } = await import("../app/env.server");
+  const directory = path.resolve(options.directory);
+  await mkdir(directory, { recursive: true });
+  const server = new S3rver({
+    address: options.host ?? "127.0.0.1",
+    port: options.port,
+    directory,
+    silent: true,
+    vhostBuckets: false,
+    configureBuckets: [{ name: options.bucket ?? FAKE_S3_BUCKET }],
+  });
+  const address = await server.run();
+  return { name: "s3", port: address.port, close: () => server.close() };
+}
+
 /** Starts every fake from the environment (as `npm start` does). */
 export async function startFakes(env: NodeJS.ProcessEnv = process.env): Promise<RunningFake[]> {
   const fakes: RunningFake[] = [];
@@ -181,6 +202,9 @@ export async function startFakes(env: NodeJS.ProcessEnv = process.env): Promise<
   }
   if (!env.VAPID_PUBLIC_KEY) {
     fakes.push(await startPushFake({ port: Number(env.PUSH_FAKE_PORT ?? 4310), dir: env.DEV_PUSH_DIR ?? ".data/push" }));
+  }
+  if (!env.PHOTOS_S3_BUCKET && !env.PHOTOS_S3_ENDPOINT) {
+    fakes.push(await startS3Fake({ port: Number(env.PHOTOS_S3_PORT ?? 4569), directory: env.PHOTOS_S3_DIR ?? ".data/s3" }));
   }
   return fakes;
 }

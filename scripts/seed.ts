@@ -7,6 +7,7 @@ import { validateModel } from "../app/engine/model";
 import { createRig } from "../app/repos/rigs.server";
 import { demoPeople } from "../tests/fixtures/demo";
 import { juniperModel } from "../tests/fixtures/juniper";
+import { seedDemoPhotos } from "./seed-photos";
 
 const { db, pool } = createDb(getEnv().DATABASE_URL, 1);
 try {
@@ -31,6 +32,8 @@ try {
     if (others.length) await db.insert(rigMembers).values(others);
     console.log(`[tilldawn] Seeded the demo rig "${rig.name}" with ${people.length} people`);
   }
+  // Demo photos: when Juniper has none yet and the photo store answers (scripts/seed-photos.ts).
+  await seedDemoPhotos(db);
 } catch (error) {
   console.error(`[tilldawn] Seeding failed: ${(error as Error).message}`);
   process.exitCode = 1;

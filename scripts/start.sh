@@ -12,6 +12,8 @@ export PGPORT="${PGPORT:-54329}"
 export DATABASE_URL="${DATABASE_URL:-postgres://tilldawn@127.0.0.1:$PGPORT/tilldawn}"
 export APP_URL="${APP_URL:-http://127.0.0.1:$PORT}"
 export SMTP_PORT="${SMTP_PORT:-2525}"
+export PHOTOS_S3_PORT="${PHOTOS_S3_PORT:-4569}"
+export PHOTOS_S3_DIR="${PHOTOS_S3_DIR:-$ROOT/.data/s3}"
 DATA_DIR="${TILLDAWN_DATA_DIR:-$ROOT/.data/dev}"
 started=$(date +%s)
 
@@ -38,10 +40,15 @@ trap 'cleanup 0' INT TERM
 
 pg_up "$DATA_DIR/pg" "$PGPORT" tilldawn
 node --import tsx scripts/migrate.ts || exit 1
-node --import tsx scripts/seed.ts || exit 1
+# The fakes start before the seed: it uploads the demo rig's photos to the S3 fake.
 if [ -f scripts/fakes.ts ]; then
   setsid node --import tsx scripts/fakes.ts & PIDS+=($!)
+  if [ -z "${PHOTOS_S3_BUCKET:-}${PHOTOS_S3_ENDPOINT:-}" ]; then
+    node scripts/wait-ready.mjs "http://127.0.0.1:$PHOTOS_S3_PORT/" 20000 || die "The S3 fake did not start on port $PHOTOS_S3_PORT (set PHOTOS_S3_PORT to a free port)"
+  fi
 fi
+node --import tsx scripts/seed.ts || exit 1
+node --import tsx scripts/photo-sweep.ts || true
 log "Building the app"
 npx react-router build >"$ROOT/.data/build.log" 2>&1 || { tail -n 30 "$ROOT/.data/build.log"; die "Build failed (full log: .data/build.log)"; }
 

@@ -10,6 +10,10 @@ export PGPORT="${TEST_PGPORT:-54339}"
 export DATABASE_URL="postgres://tilldawn@127.0.0.1:$PGPORT/tilldawn_test"
 export E2E_PORT="${E2E_PORT:-3199}"
 export PG_FSYNC=off
+# The S3 fake for photos (seed, integration and browser tests), on a port of its own.
+export PHOTOS_S3_PORT="${TEST_S3_PORT:-4599}"
+export PHOTOS_S3_DIR="$ROOT/.data/test/s3"
+unset PHOTOS_S3_BUCKET PHOTOS_S3_ENDPOINT
 DATA_DIR="$ROOT/.data/test"
 REPORTS="$DATA_DIR/reports"
 started=$(date +%s)
@@ -18,7 +22,8 @@ ensure_node_modules
 ensure_postgres
 ensure_chromium
 
-cleanup() { local code=$?; pg_down "$DATA_DIR/pg"; exit $code; }
+S3_PID=""
+cleanup() { local code=$?; [ -n "$S3_PID" ] && kill "$S3_PID" 2>/dev/null; pg_down "$DATA_DIR/pg"; exit $code; }
 trap cleanup EXIT
 trap 'exit 130' INT TERM
 
@@ -28,6 +33,9 @@ rm -rf "$DATA_DIR"
 mkdir -p "$REPORTS"
 pg_up "$DATA_DIR/pg" "$PGPORT" tilldawn_test
 node --import tsx scripts/migrate.ts || exit 1
+port_free "$PHOTOS_S3_PORT" || die "Port $PHOTOS_S3_PORT (the S3 fake) is taken. Set TEST_S3_PORT to a free port."
+setsid node --import tsx scripts/s3-fake.ts & S3_PID=$!
+node scripts/wait-ready.mjs "http://127.0.0.1:$PHOTOS_S3_PORT/" 20000 || die "The S3 fake did not start"
 node --import tsx scripts/seed.ts || exit 1
 
 STEPS=()

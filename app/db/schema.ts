@@ -448,3 +448,43 @@ export const deviceReadings = pgTable(
   },
   (t) => [index("device_readings_device_idx").on(t.deviceId)],
 );
+/* ------------------------------------------------------------------ photos */
+
+/**
+ * A photo of a part of the rig (`partId`: an id in the rig's model, e.g. a bank, switch,
+ * protection, circuit or load; `place`: a free label such as "battery compartment") or of a
+ * logbook reading. The picture itself lives in the photo store (S3) under `objectKey` and
+ * `thumbKey`. A row exists only once both objects are stored; objects with no row are orphans
+ * that the cleanup job removes (app/photos/cleanup.server.ts).
+ */
+export const photos = pgTable(
+  "photos",
+  {
+    id: uuid("id").primaryKey(),
+    rigId: uuid("rig_id")
+      .notNull()
+      .references(() => rigs.id, { onDelete: "cascade" }),
+    partId: text("part_id"),
+    /** The kind of part when it was attached ("bank", "switch", …), for grouping. */
+    partKind: text("part_kind"),
+    place: text("place").notNull().default(""),
+    readingId: uuid("reading_id").references(() => readings.id, { onDelete: "cascade" }),
+    caption: text("caption").notNull().default(""),
+    mime: text("mime").notNull(),
+    bytes: integer("bytes").notNull(),
+    width: integer("width").notNull(),
+    height: integer("height").notNull(),
+    objectKey: text("object_key").notNull(),
+    thumbKey: text("thumb_key").notNull(),
+    /** True when the owner chose to keep the picture's EXIF (with its location). */
+    keptLocation: boolean("kept_location").notNull().default(false),
+    authorId: uuid("author_id").references(() => users.id, { onDelete: "set null" }),
+    createdAt: createdAt(),
+  },
+  (t) => [
+    index("photos_rig_created_idx").on(t.rigId, t.createdAt),
+    index("photos_reading_idx").on(t.readingId),
+    check("photos_on_something", sql`${t.readingId} IS NOT NULL OR ${t.partId} IS NOT NULL OR ${t.place} <> ''`),
+    check("photos_reading_or_part", sql`${t.readingId} IS NULL OR (${t.partId} IS NULL AND ${t.place} = '')`),
+  ],
+);

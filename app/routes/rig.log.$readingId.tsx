@@ -2,6 +2,7 @@ import { data, Form, Link, redirect, useActionData, useNavigation } from "react-
 import type { Route } from "./+types/rig.log.$readingId";
 import { isoToLocalInput, parseReadingForm, type ReadingForm } from "~/components/log/reading-input";
 import { fmtTime } from "~/components/log/format";
+import { ReadingPhotos } from "~/components/photos/reading-photos";
 import { getMeta, localDb } from "~/offline/db.client";
 import { deleteReading, editReading } from "~/offline/outbox.client";
 import { READING_VALUE_KEYS, type ReadingEdit } from "~/offline/protocol";
@@ -105,6 +106,7 @@ export default function EditReading({ loaderData, params }: Route.ComponentProps
           </Form>
         </>
       )}
+      <ReadingPhotos rigId={params.rigId} readingId={params.readingId} />
     </div>
   );
 }

@@ -37,6 +37,9 @@ export default function RigModelPage({ loaderData }: Route.ComponentProps) {
         <p className="text-night-300">As built, revision {revision}</p>
       </header>
       <RigOverview model={model} />
+      <Link to={`/rigs/${rig.id}/photos`} className="mr-2 inline-flex min-h-12 items-center rounded-xl border border-night-600 px-4 font-bold">
+        Photos
+      </Link>
       <Link to={`/rigs/${rig.id}`} className="inline-flex min-h-12 items-center rounded-xl border border-night-600 px-4 font-bold">
         Back to Now
       </Link>

@@ -3,7 +3,7 @@
 import { spawn, type ChildProcess } from "node:child_process";
 import { rm } from "node:fs/promises";
 import { fileURLToPath } from "node:url";
-import { startPushFake, startSmtpFake } from "../../scripts/fakes";
+import { startPushFake, startS3Fake, startSmtpFake, type RunningFake } from "../../scripts/fakes";
 
 const root = fileURLToPath(new URL("../..", import.meta.url));
 
@@ -20,7 +20,15 @@ export default async function setup() {
   await rm(pushDir, { recursive: true, force: true });
   const push = await startPushFake({ port: Number(process.env.PUSH_FAKE_PORT ?? 4310), dir: pushDir });
   process.env.E2E_PUSH_URL = push.url;
-  const fakesEnv = { SMTP_PORT: String(smtp.port), DEV_OUTBOX_DIR: outboxDir, DEV_PUSH_DIR: pushDir, VAPID_KEYS_FILE: `${root}.data/test/vapid.json` };
+  const s3 = await ensureS3Fake();
+  const fakesEnv = {
+    SMTP_PORT: String(smtp.port),
+    DEV_OUTBOX_DIR: outboxDir,
+    DEV_PUSH_DIR: pushDir,
+    VAPID_KEYS_FILE: `${root}.data/test/vapid.json`,
+    PHOTOS_S3_PORT: String(s3.port),
+    PHOTOS_S3_DIR: s3.directory,
+  };
   const server = spawn(`${root}node_modules/.bin/react-router-serve`, ["./build/server/index.js"], {
     cwd: root,
     env: { ...process.env, NODE_ENV: "production", HOST: "127.0.0.1", PORT: port, APP_URL: baseUrl, ...fakesEnv },
@@ -48,5 +56,31 @@ export default async function setup() {
     for (const child of children) child.kill("SIGTERM");
     await smtp.close();
     await push.close();
+    await s3.fake?.close();
   };
+}
+
+/**
+ * The S3 fake for photos: the one `npm test` started before seeding (PHOTOS_S3_PORT answers), or
+ * a new one on E2E_S3_PORT over the same folder, which then gets the demo photos if the seed
+ * ran without it.
+ */
+async function ensureS3Fake(): Promise<{ port: number; directory: string; fake: RunningFake | null }> {
+  const directory = process.env.PHOTOS_S3_DIR ?? `${root}.data/test/s3`;
+  const running = process.env.PHOTOS_S3_PORT;
+  if (running && (await fetch(`http://127.0.0.1:${running}/`).then(() => true, () => false))) {
+    return { port: Number(running), directory, fake: null };
+  }
+  const fake = await startS3Fake({ port: Number(process.env.E2E_S3_PORT ?? 4598), directory });
+  process.env.PHOTOS_S3_PORT = String(fake.port);
+  process.env.PHOTOS_S3_DIR = directory;
+  const { createDb } = await import("../../app/db/db.server");
+  const { seedDemoPhotos } = await import("../../scripts/seed-photos");
+  const { db, pool } = createDb(process.env.DATABASE_URL ?? "postgres://tilldawn@127.0.0.1:54339/tilldawn_test", 1);
+  try {
+    await seedDemoPhotos(db);
+  } finally {
+    await pool.end();
+  }
+  return { port: fake.port, directory, fake };
 }

@@ -116,5 +116,16 @@ export const permissionMatrix: Record<string, RouteRow> = {
     POST: { expect: { anonymous: "signin", stranger: "signin", guest: "signin", crew: "signin", owner: "signin" }, json: () => ({}), csrf: false },
   },
   "routes/api.v1.device-readings-schema.ts": { GET: { expect: "ok" } },
+  "routes/rig.photos.tsx": { GET: { expect: members() } },
+  "routes/api.rigs.photos.ts": {
+    note: "Adding: owners to parts and places, crew and owners to readings (tests/integration/photos.test.ts checks each). The empty JSON body names no target: 400.",
+    GET: { expect: members() },
+    POST: { expect: crewUp(), json: () => ({}) },
+  },
+  "routes/api.rigs.photos.$photoId.ts": {
+    note: "The :photoId here is a fresh uuid, so members who pass the rig check get 404; photos.test.ts checks real photos for each person.",
+    GET: { expect: { anonymous: "signin", stranger: "notFound", guest: "notFound", crew: "notFound", owner: "notFound" } },
+    POST: { expect: { anonymous: "signin", stranger: "notFound", guest: "forbidden", crew: "notFound", owner: "notFound" }, form: () => ({ intent: "delete" }) },
+  },
   "routes/not-found.tsx": { GET: { expect: "notFound" } },
 };
