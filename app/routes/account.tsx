@@ -1,23 +1,19 @@
 import { data, Form, redirect, useActionData, useNavigation } from "react-router";
-import { count, eq } from "drizzle-orm";
 import type { Route } from "./+types/account";
 import { protectedAction } from "~/auth/csrf.server";
 import { clearSessionCookie, endAllSessions, requireUser } from "~/auth/session.server";
 import { getDb } from "~/db/db.server";
-import { sessions } from "~/db/schema";
 import { deleteAccount, RigSetChangedError, soleOwnedRigs } from "~/repos/members.server";
-import { nameSchema, preferencesSchema, savePreferences, setName } from "~/repos/users.server";
+import { countSessions, savePreferences, setName } from "~/repos/users.server";
+import { nameSchema, preferencesSchema } from "~/schemas/account";
 import { Button, Card, Field, Notice } from "~/components/ui/form";
 
 /** GET /account — name, e-mail, units, night mode, signing out, deleting the account. */
 export async function loader({ request }: Route.LoaderArgs) {
   const user = await requireUser(request);
   const db = getDb();
-  const [soleRigs, [sessionCount]] = await Promise.all([
-    soleOwnedRigs(db, user.id),
-    db.select({ n: count() }).from(sessions).where(eq(sessions.userId, user.id)),
-  ]);
-  return { name: user.name, email: user.email, preferences: user.preferences, soleRigs, sessions: sessionCount?.n ?? 1 };
+  const [soleRigs, sessionCount] = await Promise.all([soleOwnedRigs(db, user.id), countSessions(db, user.id)]);
+  return { name: user.name, email: user.email, preferences: user.preferences, soleRigs, sessions: sessionCount };
 }
 
 type AccountAnswer = {

@@ -1,9 +1,8 @@
 import { data, Form, redirect, useActionData, useNavigation } from "react-router";
-import { z } from "zod";
 import type { Route } from "./+types/members";
 import { protectedAction } from "~/auth/csrf.server";
 import { requireRigRole } from "~/auth/guards.server";
-import { roleHelp, roleLabel, rigRoles, type Role } from "~/auth/roles";
+import { roleHelp, roleLabel, rigRoles, roleSchema, type Role } from "~/auth/roles";
 import { emailSchema } from "~/auth/sign-in.server";
 import { getDb } from "~/db/db.server";
 import { appOrigin } from "~/env.server";
@@ -40,7 +39,6 @@ type ActionAnswer = {
   values?: { email: string; role: string };
 };
 
-const roleSchema = z.enum(rigRoles, { error: "Choose owner, crew or guest." });
 
 export const action = protectedAction(async ({ request, params }: Route.ActionArgs) => {
   const form = await request.formData();

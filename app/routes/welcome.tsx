@@ -3,7 +3,8 @@ import type { Route } from "./+types/welcome";
 import { protectedAction } from "~/auth/csrf.server";
 import { requireUser, safeRedirect } from "~/auth/session.server";
 import { getDb } from "~/db/db.server";
-import { nameSchema, setName } from "~/repos/users.server";
+import { setName } from "~/repos/users.server";
+import { nameSchema } from "~/schemas/account";
 import { Button, Field } from "~/components/ui/form";
 
 /** GET /welcome — asked once, after a first sign-in: the name the crew will see. */
