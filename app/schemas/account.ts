@@ -29,3 +29,38 @@ export const defaultPreferences: Preferences = {
   temperatureUnit: "c",
   nightDefault: false,
 };
+
+/**
+ * An e-mail address as people type it (trimmed, lower-cased). Used by the invitation form;
+ * `app/auth/sign-in.server.ts` still declares the same rule for signing in (to become an import
+ * of this one when the sign-in form moves here).
+ */
+export const emailSchema = z
+  .string({ error: "Enter your e-mail address." })
+  .trim()
+  .min(1, "Enter your e-mail address.")
+  .max(254, "That address is too long.")
+  .pipe(z.email({ error: "That does not look like an e-mail address. Check it and try again." }))
+  .transform((s) => s.toLowerCase());
+
+/** The account page's forms, one per `intent`. */
+export const ACCOUNT_INTENT = {
+  profile: "profile",
+  preferences: "preferences",
+  signOutEverywhere: "sign-out-everywhere",
+  delete: "delete",
+} as const;
+
+export const profileFormSchema = z.object({ name: nameSchema });
+
+/** A checkbox sends "on" or nothing: nothing is false. */
+export const preferencesFormSchema = preferencesSchema.extend({ nightDefault: z.boolean().default(false) });
+
+export const deleteAccountFormSchema = z.object({
+  confirm: z.boolean({ error: "Tick the box to confirm that you want to delete your account." }),
+  /** The rigs the person saw listed when they confirmed (comma-separated ids). */
+  rigIds: z
+    .string()
+    .default("")
+    .transform((s) => s.split(",").filter(Boolean)),
+});

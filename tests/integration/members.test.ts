@@ -66,7 +66,7 @@ describe("Creating a rig", () => {
     const cookie = await sessionCookieFor(db, ada.id);
     const res = await callRoute(rigsRoute.action, { path: "/rigs", cookie, form: { name: "   " } });
     expect(res.status).toBe(400);
-    expect(res.body).toMatchObject({ error: expect.stringMatching(/Name the rig/) });
+    expect(res.body).toMatchObject({ result: { status: "error", error: { name: [expect.stringMatching(/Name the rig/)] } } });
     expect(await listRigsForUser(db, ada.id)).toEqual([]);
   });
 });
@@ -157,7 +157,10 @@ describe("Invitations", () => {
       form: { intent: "invite", email: ada.email, role: "crew" },
     });
     expect(res.status).toBe(400);
-    expect(res.body).toMatchObject({ error: expect.stringMatching(/already on this rig/), values: { email: ada.email, role: "crew" } });
+    expect(res.body).toMatchObject({
+      intent: "invite",
+      result: { error: { "": [expect.stringMatching(/already on this rig/)] }, initialValue: { email: ada.email, role: "crew" } },
+    });
   });
 
   test("an unknown token is 404", async () => {
@@ -180,7 +183,7 @@ describe("A rig always keeps an owner", () => {
       form: { intent: "leave" },
     });
     expect(left.status).toBe(400);
-    expect(left.body).toMatchObject({ error: expect.stringMatching(/at least one owner/) });
+    expect(left.body).toMatchObject({ intent: "leave", result: { error: { "": [expect.stringMatching(/at least one owner/)] } } });
   });
 
   test("with two owners, one may step down; when both try at once, exactly one succeeds", async () => {
@@ -246,9 +249,10 @@ describe("Deleting an account", () => {
 
     const unconfirmed = await callRoute(accountRoute.action, { path: "/account", cookie, form: { intent: "delete", rigIds: mine.id } });
     expect(unconfirmed.status).toBe(400);
+    expect(unconfirmed.body).toMatchObject({ result: { error: { confirm: [expect.stringMatching(/Tick the box/)] } } });
     const stale = await callRoute(accountRoute.action, { path: "/account", cookie, form: { intent: "delete", rigIds: "", confirm: "on" } });
     expect(stale.status).toBe(409);
-    expect(stale.body).toMatchObject({ soleRigs: [{ name: "Solo van" }] });
+    expect(stale.body).toMatchObject({ soleRigs: [{ name: "Solo van" }], result: { error: { "": [expect.stringMatching(/have changed/)] } } });
 
     const done = await callRoute(accountRoute.action, { path: "/account", cookie, form: { intent: "delete", rigIds: mine.id, confirm: "on" } });
     expect(done.status).toBe(302);
