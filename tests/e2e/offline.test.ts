@@ -8,6 +8,7 @@ import type { Page } from "playwright-core";
 import { baseUrl, phoneContext } from "./browser";
 import { signIn } from "./auth";
 import { setUpJuniper } from "./juniper";
+import { demoPerson } from "../fixtures/demo";
 import { readings, switchChanges, users } from "~/db/schema";
 import { createSession, SESSION_COOKIE } from "~/auth/session.server";
 
@@ -52,7 +53,7 @@ describe("Offline first in Chromium", () => {
     const tag = `e2e-offline-${Date.now()}`;
     const started = new Date();
     const context = await phoneContext(juniper.browser);
-    const samId = await signIn(context, "sam@juniper.example");
+    const samId = await signIn(context, demoPerson("crew").email);
     const page = await context.newPage();
     await installOnline(page, baseUrl());
 
@@ -111,7 +112,7 @@ describe("Offline first in Chromium", () => {
 
     // Ada, on another phone, sees the three readings.
     const other = await phoneContext(juniper.browser);
-    await signIn(other, "ada@juniper.example");
+    await signIn(other, demoPerson("owner").email);
     const adaPage = await other.newPage();
     await adaPage.goto(`${baseUrl()}/rigs/${juniper.rigId}/log`);
     for (const n of [1, 2, 3]) await adaPage.getByText(`${tag} #${n}`).waitFor({ timeout: 15_000 });
@@ -125,7 +126,7 @@ describe("Offline first in Chromium", () => {
     let server = await startServer(port);
     const tag = `e2e-crash-${Date.now()}`;
     const context = await phoneContext(juniper.browser);
-    const [sam] = await db.select().from(users).where(eq(users.email, "sam@juniper.example"));
+    const [sam] = await db.select().from(users).where(eq(users.email, demoPerson("crew").email));
     const { setCookie } = await createSession(db, sam!.id, "crash test");
     await context.addCookies([{ name: SESSION_COOKIE, value: setCookie.split(";")[0]!.slice(SESSION_COOKIE.length + 1), url: origin, httpOnly: true, sameSite: "Lax" }]);
     const page = await context.newPage();

@@ -15,12 +15,12 @@ const { createRig, getAsBuilt } = await import("~/repos/rigs.server");
 const { getAsBuiltModel, requireAsBuiltModel } = await import("~/repos/models.server");
 const { saveModeEdit, writeRigStateAndLog } = await import("~/repos/logged-writes.server");
 const { juniperModel } = await import("../fixtures/juniper");
-const { demoPeople } = await import("../fixtures/demo");
+const { demoPeopleTagged } = await import("../fixtures/demo");
 
 async function rigOwnedByAda() {
   const tag = crypto.randomUUID().slice(0, 8);
-  const ada = demoPeople[0];
-  const [owner] = await db.insert(users).values({ email: ada.email.replace("@", `-${tag}@`), name: ada.name }).returning();
+  const ada = demoPeopleTagged(tag).find((p) => p.role === "owner")!;
+  const [owner] = await db.insert(users).values({ email: ada.email, name: ada.name }).returning();
   const { rig } = await createRig(db, { name: `Juniper ${tag}`, ownerId: owner!.id, document: juniperModel });
   return { rig, owner: owner! };
 }

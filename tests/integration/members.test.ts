@@ -61,7 +61,7 @@ describe("Creating a rig", () => {
     expect(validateModel(asBuilt!.document).ok).toBe(true);
   });
 
-  test("an empty name is answered 400 with a message, nothing created", async () => {
+  test("an empty name is answered 400 with a message and nothing is created", async () => {
     const ada = await makeUser(db, "Ada");
     const cookie = await sessionCookieFor(db, ada.id);
     const res = await callRoute(rigsRoute.action, { path: "/rigs", cookie, form: { name: "   " } });
@@ -163,7 +163,7 @@ describe("Invitations", () => {
     });
   });
 
-  test("an unknown token is 404", async () => {
+  test("an unknown token is answered 404", async () => {
     const token = "x".repeat(43);
     const res = await callRoute(inviteRoute.loader, { path: `/invites/${token}`, params: { token } });
     expect(res.status).toBe(404);
@@ -233,7 +233,7 @@ describe("A rig always keeps an owner", () => {
 });
 
 describe("Deleting an account", () => {
-  test("deletes the rigs the person alone owns, after a confirmation naming them; shared rigs stay", async () => {
+  test("deleting an account deletes the rigs the person alone owns, after a confirmation naming them; shared rigs stay", async () => {
     const ada = await makeUser(db, "Ada");
     const sam = await makeUser(db, "Sam");
     const mine = await rigOf(ada.id, "Solo van");
@@ -261,7 +261,7 @@ describe("Deleting an account", () => {
     expect(await listRigsForUser(db, sam.id)).toEqual([expect.objectContaining({ id: shared.id, role: "owner" })]);
   });
 
-  test("refuses when the set of rigs changed after the person confirmed", async () => {
+  test("deleting is refused when the set of rigs changed after the person confirmed", async () => {
     const ada = await makeUser(db, "Ada");
     const rig = await rigOf(ada.id);
     await expect(deleteAccount(db, ada.id, [])).rejects.toBeInstanceOf(RigSetChangedError);
