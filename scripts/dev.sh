@@ -8,38 +8,8 @@ source "$(dirname "$0")/lib.sh"
 cd "$ROOT"
 
 export NODE_ENV=development
-export PORT="${PORT:-3000}"
-export HOST="${HOST:-127.0.0.1}"
-export PGPORT="${PGPORT:-54329}"
-export DATABASE_URL="${DATABASE_URL:-postgres://tilldawn@127.0.0.1:$PGPORT/tilldawn}"
-export APP_URL="${APP_URL:-http://127.0.0.1:$PORT}"
-export SMTP_PORT="${SMTP_PORT:-2525}"
-DATA_DIR="${TILLDAWN_DATA_DIR:-$ROOT/.data/dev}"
-
-ensure_node_modules
-node --import tsx scripts/check-env.ts || exit 1
-port_free "$PORT" || die "Port $PORT is taken by another program. Set PORT to a free port (e.g. PORT=3001 npm run dev)."
-ensure_postgres
-
-PIDS=()
-cleanup() {
-  local code="${1:-$?}"
-  trap - EXIT INT TERM
-  log "Stopping"
-  for pid in "${PIDS[@]}"; do kill "$pid" 2>/dev/null; done
-  wait 2>/dev/null
-  pg_down "$DATA_DIR/pg"
-  exit "$code"
-}
-trap cleanup EXIT
-trap 'cleanup 0' INT TERM
-
-pg_up "$DATA_DIR/pg" "$PGPORT" tilldawn
-node --import tsx scripts/migrate.ts || exit 1
-node --import tsx scripts/seed.ts || exit 1
-if [ -f scripts/fakes.ts ]; then
-  setsid node --import tsx scripts/fakes.ts & PIDS+=($!)
-fi
+local_stack_env
+local_stack_up "npm run dev"
 
 log "Starting the dev server (hot reload) on http://$HOST:$PORT"
 setsid ./node_modules/.bin/react-router dev --host "$HOST" --port "$PORT" --strictPort & PIDS+=($!)
