@@ -27,3 +27,15 @@ export function answerFor<Intent extends string>(answer: FormAnswer<Intent> | un
 export function formError(result: SubmissionResult<string[]> | undefined): string | undefined {
   return result?.error?.[""]?.[0];
 }
+
+/**
+ * The props a `Field` takes from a Conform field: its name, what to show in it (what was typed
+ * last, else `fallback`) and its first error. Pass the field's `key` separately.
+ */
+export function fieldProps(field: { name: string; initialValue?: unknown; errors?: string[] }, fallback = "") {
+  return {
+    name: field.name,
+    defaultValue: typeof field.initialValue === "string" ? field.initialValue : fallback,
+    error: field.errors?.[0],
+  };
+}

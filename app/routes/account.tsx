@@ -7,7 +7,7 @@ import { clearSessionCookie, endAllSessions, requireUser } from "~/auth/session.
 import { getDb } from "~/db/db.server";
 import { deleteAccount, RigSetChangedError, soleOwnedRigs } from "~/repos/members.server";
 import { countSessions, savePreferences, setName } from "~/repos/users.server";
-import { answerFor, formError, readIntent, type FormAnswer } from "~/lib/forms";
+import { answerFor, fieldProps, formError, readIntent, type FormAnswer } from "~/lib/forms";
 import { ACCOUNT_INTENT, deleteAccountFormSchema, preferencesFormSchema, profileFormSchema } from "~/schemas/account";
 import { Button, Card, Field, Notice } from "~/components/ui/form";
 
@@ -146,13 +146,11 @@ export default function Account({ loaderData }: Route.ComponentProps) {
           <input type="hidden" name="intent" value={ACCOUNT_INTENT.profile} />
           <Field
             label="Name"
-            name={profile.name.name}
             key={profile.name.key}
+            {...fieldProps(profile.name, name)}
             autoComplete="name"
             maxLength={80}
             required
-            defaultValue={profile.name.initialValue ?? name}
-            error={profile.name.errors?.[0]}
           />
           <Button type="submit" disabled={busy === ACCOUNT_INTENT.profile}>
             {busy === ACCOUNT_INTENT.profile ? "Saving…" : "Save name"}

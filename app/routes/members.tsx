@@ -6,7 +6,7 @@ import { protectedAction } from "~/auth/csrf.server";
 import { requireRigRole } from "~/auth/guards.server";
 import { roleHelp, roleLabel, rigRoles, type Role } from "~/auth/roles";
 import { getDb } from "~/db/db.server";
-import { answerFor, formError } from "~/lib/forms";
+import { answerFor, fieldProps, formError } from "~/lib/forms";
 import { listMembers, listPendingInvites } from "~/repos/members.server";
 import { inviteFormSchema, MEMBERS_INTENT } from "~/schemas/members";
 import { Button, Card, Field, Notice } from "~/components/ui/form";
@@ -121,14 +121,12 @@ export default function Members({ loaderData }: Route.ComponentProps) {
               <input type="hidden" name="intent" value={MEMBERS_INTENT.invite} />
               <Field
                 label="Their e-mail address"
-                name={invite.email.name}
+                key={invite.email.key}
+                {...fieldProps(invite.email)}
                 type="email"
                 inputMode="email"
                 autoComplete="off"
                 required
-                defaultValue={invite.email.initialValue ?? ""}
-                key={invite.email.key}
-                error={invite.email.errors?.[0]}
               />
               <fieldset className="space-y-2" aria-describedby={invite.role.errors ? "invite-role-error" : undefined} key={invite.role.key}>
                 <legend className="font-bold">Role</legend>

@@ -7,6 +7,7 @@ import { requireUser } from "~/auth/session.server";
 import { getDb } from "~/db/db.server";
 import { createRig, listRigsForUser } from "~/repos/rigs.server";
 import { starterModel } from "~/repos/starter-model";
+import { fieldProps } from "~/lib/forms";
 import { createRigFormSchema } from "~/schemas/rigs";
 import { RigList } from "~/components/account/rig-list";
 import { Button, Card, Field } from "~/components/ui/form";
@@ -61,13 +62,11 @@ export default function Rigs({ loaderData }: Route.ComponentProps) {
         <Form method="post" id={form.id} onSubmit={form.onSubmit} className="space-y-4" noValidate>
           <Field
             label="Rig name"
-            name={fields.name.name}
             key={fields.name.key}
+            {...fieldProps(fields.name)}
             required
             maxLength={80}
             placeholder="e.g. Kestrel"
-            defaultValue={fields.name.initialValue ?? ""}
-            error={fields.name.errors?.[0]}
           />
           <Button type="submit" disabled={busy}>
             {busy ? "Creating…" : "Create rig"}

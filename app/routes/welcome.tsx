@@ -6,6 +6,7 @@ import { protectedAction } from "~/auth/csrf.server";
 import { requireUser, safeRedirect } from "~/auth/session.server";
 import { getDb } from "~/db/db.server";
 import { setName } from "~/repos/users.server";
+import { fieldProps } from "~/lib/forms";
 import { profileFormSchema } from "~/schemas/account";
 import { Button, Field } from "~/components/ui/form";
 
@@ -52,14 +53,12 @@ export default function Welcome({ loaderData }: Route.ComponentProps) {
         <input type="hidden" name="redirectTo" value={loaderData.redirectTo} />
         <Field
           label="Your name"
-          name={fields.name.name}
           key={fields.name.key}
+          {...fieldProps(fields.name)}
           autoComplete="name"
           required
           autoFocus
           maxLength={80}
-          defaultValue={fields.name.initialValue ?? ""}
-          error={fields.name.errors?.[0]}
         />
         <Button type="submit" className="w-full" disabled={busy}>
           {busy ? "Saving…" : "Continue"}
