@@ -1,15 +1,16 @@
 import { useForm } from "@conform-to/react";
 import { parseWithZod } from "@conform-to/zod/v4";
-import { data, Form, redirect, useActionData, useNavigation } from "react-router";
+import { Form, useActionData, useNavigation } from "react-router";
 import type { Route } from "./+types/account";
 import { protectedAction } from "~/auth/csrf.server";
-import { clearSessionCookie, endAllSessions, requireUser } from "~/auth/session.server";
+import { requireUser } from "~/auth/session.server";
 import { getDb } from "~/db/db.server";
-import { deleteAccount, RigSetChangedError, soleOwnedRigs } from "~/repos/members.server";
-import { countSessions, savePreferences, setName } from "~/repos/users.server";
-import { answerFor, fieldProps, formError, readIntent, type FormAnswer } from "~/lib/forms";
+import { soleOwnedRigs } from "~/repos/members.server";
+import { countSessions } from "~/repos/users.server";
+import { answerFor, fieldProps, formError } from "~/lib/forms";
 import { ACCOUNT_INTENT, deleteAccountFormSchema, preferencesFormSchema, profileFormSchema } from "~/schemas/account";
 import { Button, Card, Field, Notice } from "~/components/ui/form";
+import { accountAction, type AccountAnswer, type AccountIntent } from "./account.server";
 
 /** GET /account — name, e-mail, units, night mode, signing out, deleting the account. */
 export async function loader({ request }: Route.LoaderArgs) {
@@ -19,60 +20,7 @@ export async function loader({ request }: Route.LoaderArgs) {
   return { name: user.name, email: user.email, preferences: user.preferences, soleRigs, sessions: sessionCount };
 }
 
-type AccountIntent = (typeof ACCOUNT_INTENT)[keyof typeof ACCOUNT_INTENT];
-type AccountAnswer = FormAnswer<AccountIntent> & { soleRigs?: { id: string; name: string }[] };
-
-const answer = (status: number, body: AccountAnswer) => data<AccountAnswer>(body, { status });
-
-export const action = protectedAction(async ({ request }: Route.ActionArgs) => {
-  const user = await requireUser(request);
-  const db = getDb();
-  const form = await request.formData();
-  switch (readIntent(form, ACCOUNT_INTENT)) {
-    case ACCOUNT_INTENT.profile: {
-      const submission = parseWithZod(form, { schema: profileFormSchema });
-      if (submission.status !== "success") return answer(400, { intent: ACCOUNT_INTENT.profile, result: submission.reply() });
-      await setName(db, user.id, submission.value.name);
-      return answer(200, { intent: ACCOUNT_INTENT.profile, result: submission.reply(), ok: "Name saved." });
-    }
-    case ACCOUNT_INTENT.preferences: {
-      const submission = parseWithZod(form, { schema: preferencesFormSchema });
-      if (submission.status !== "success") {
-        return answer(400, { intent: ACCOUNT_INTENT.preferences, result: submission.reply({ formErrors: ["Check the highlighted choices."] }) });
-      }
-      await savePreferences(db, user.id, submission.value);
-      return answer(200, { intent: ACCOUNT_INTENT.preferences, result: submission.reply(), ok: "Preferences saved." });
-    }
-    case ACCOUNT_INTENT.signOutEverywhere: {
-      await endAllSessions(db, user.id);
-      return redirect("/", { headers: { "Set-Cookie": await clearSessionCookie() } });
-    }
-    case ACCOUNT_INTENT.delete: {
-      const submission = parseWithZod(form, { schema: deleteAccountFormSchema });
-      // An unticked box sends nothing, which the schema refuses with its message.
-      if (submission.status !== "success") {
-        return answer(400, { intent: ACCOUNT_INTENT.delete, result: submission.reply(), soleRigs: await soleOwnedRigs(db, user.id) });
-      }
-      try {
-        await deleteAccount(db, user.id, submission.value.rigIds);
-      } catch (error) {
-        if (error instanceof RigSetChangedError) {
-          return answer(409, {
-            intent: ACCOUNT_INTENT.delete,
-            soleRigs: error.rigs,
-            result: submission.reply({
-              formErrors: ["The rigs that would be deleted with your account have changed. Check the list again, then confirm."],
-            }),
-          });
-        }
-        throw error;
-      }
-      return redirect("/", { headers: { "Set-Cookie": await clearSessionCookie() } });
-    }
-    default:
-      return data({ error: { code: "unknown_intent", message: "Unknown request." } }, { status: 400 });
-  }
-});
+export const action = protectedAction(accountAction);
 
 export function meta() {
   return [{ title: "Account · Tilldawn" }];
