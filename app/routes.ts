@@ -19,7 +19,7 @@ export default [
   route("rigs/:rigId/log", "routes/rig.log.tsx"),
   route("rigs/:rigId/log/import", "routes/rig.log.import.tsx"),
   route("rigs/:rigId/log/:readingId", "routes/rig.log.$readingId.tsx"),
-  route("rigs/:rigId/members", "routes/members.tsx"),
+  route("rigs/:rigId/members", "routes/rig.members.tsx"),
   route("invites/:token", "routes/invite.tsx"),
 
   // Development only (404 with real SMTP settings)
@@ -33,9 +33,9 @@ export default [
   route("api/sync", "routes/api.sync.ts"),
   route("api/rigs/:rigId/readings", "routes/api.rigs.$rigId.readings.ts"),
   route("api/rigs/:rigId/readings.csv", "routes/api.rigs.$rigId.readings.csv.ts"),
-  route("api/rigs/:rigId/model", "routes/api.rigs.model.ts"),
-  route("api/rigs/:rigId/state", "routes/api.rigs.state.ts"),
-  route("api/rigs/:rigId/modes", "routes/api.rigs.modes.ts"),
+  route("api/rigs/:rigId/model", "routes/api.rigs.$rigId.model.ts"),
+  route("api/rigs/:rigId/state", "routes/api.rigs.$rigId.state.ts"),
+  route("api/rigs/:rigId/modes", "routes/api.rigs.$rigId.modes.ts"),
 
   route("*", "routes/not-found.tsx"),
 ] satisfies RouteConfig;

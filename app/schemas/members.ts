@@ -1,4 +1,4 @@
-/** The forms of a rig's People page (app/routes/members.tsx), one per `intent`. */
+/** The forms of a rig's People page (app/routes/rig.members.tsx), one per `intent`. */
 import { z } from "zod";
 import { roleSchema } from "~/auth/roles";
 import { emailSchema } from "./account";

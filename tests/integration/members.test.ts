@@ -16,7 +16,7 @@ import {
   RigSetChangedError,
   soleOwnedRigs,
 } from "~/repos/members.server";
-import * as membersRoute from "~/routes/members";
+import * as membersRoute from "~/routes/rig.members";
 import * as inviteRoute from "~/routes/invite";
 import * as rigsRoute from "~/routes/rigs";
 import * as accountRoute from "~/routes/account";

@@ -12,9 +12,9 @@ const { rigMembers, switchChanges, users, rigState } = await import("~/db/schema
 const { createSession } = await import("~/auth/session.server");
 const { createRig, getAsBuilt } = await import("~/repos/rigs.server");
 const { writeRigState, getRigState } = await import("~/repos/rig-state.server");
-const stateRoute = await import("~/routes/api.rigs.state");
-const modesRoute = await import("~/routes/api.rigs.modes");
-const modelRoute = await import("~/routes/api.rigs.model");
+const stateRoute = await import("~/routes/api.rigs.$rigId.state");
+const modesRoute = await import("~/routes/api.rigs.$rigId.modes");
+const modelRoute = await import("~/routes/api.rigs.$rigId.model");
 const { juniperModel } = await import("../fixtures/juniper");
 const { demoPeopleTagged } = await import("../fixtures/demo");
 

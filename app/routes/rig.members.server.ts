@@ -1,11 +1,11 @@
 /**
- * The People page's action (app/routes/members.tsx): invite, withdraw an invitation, change a
+ * The People page's action (app/routes/rig.members.tsx): invite, withdraw an invitation, change a
  * role, remove a member, leave. Each form is parsed with its schema from app/schemas/members.ts
  * and answered with Conform's `submission.reply()`.
  */
 import { parseWithZod } from "@conform-to/zod/v4";
 import { data, redirect } from "react-router";
-import type { Route } from "./+types/members";
+import type { Route } from "./+types/rig.members";
 import { requireRigRole } from "~/auth/guards.server";
 import { roleLabel } from "~/auth/roles";
 import { getDb } from "~/db/db.server";

@@ -1,4 +1,4 @@
-import type { Route } from "./+types/api.rigs.state";
+import type { Route } from "./+types/api.rigs.$rigId.state";
 import { protectedAction } from "~/auth/csrf.server";
 import { requireRigRole } from "~/auth/guards.server";
 import { getDb } from "~/db/db.server";

@@ -1,7 +1,7 @@
 import { useForm } from "@conform-to/react";
 import { parseWithZod } from "@conform-to/zod/v4";
 import { Form, useActionData, useNavigation } from "react-router";
-import type { Route } from "./+types/members";
+import type { Route } from "./+types/rig.members";
 import { protectedAction } from "~/auth/csrf.server";
 import { requireRigRole } from "~/auth/guards.server";
 import { roleHelp, roleLabel, rigRoles, type Role } from "~/auth/roles";
@@ -10,7 +10,7 @@ import { answerFor, fieldProps, formError } from "~/lib/forms";
 import { listMembers, listPendingInvites } from "~/repos/members.server";
 import { inviteFormSchema, MEMBERS_INTENT } from "~/schemas/members";
 import { Button, Card, Field, Notice } from "~/components/ui/form";
-import { membersAction, type MembersAnswer } from "./members.server";
+import { membersAction, type MembersAnswer } from "./rig.members.server";
 
 /** GET /rigs/:rigId/members — everyone on the rig sees who is on it; owners also manage it. */
 export async function loader({ request, params }: Route.LoaderArgs) {

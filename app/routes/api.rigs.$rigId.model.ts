@@ -1,4 +1,4 @@
-import type { Route } from "./+types/api.rigs.model";
+import type { Route } from "./+types/api.rigs.$rigId.model";
 import { requireRigRole } from "~/auth/guards.server";
 import { getDb } from "~/db/db.server";
 import { requireAsBuiltModel } from "~/repos/models.server";
