@@ -19,6 +19,7 @@ import { getUserAndRefresh } from "~/auth/session.server";
 import { currentRigOf } from "~/auth/guards.server";
 import { navFor } from "~/components/app-shell";
 import { lastRigSetCookie } from "~/lib/last-rig";
+import { thrownMessage } from "~/lib/http";
 import "./app.css";
 
 export const links: Route.LinksFunction = () => [
@@ -101,7 +102,7 @@ export function ErrorBoundary({ error }: Route.ErrorBoundaryProps) {
       detail = "There is nothing at this address. It may have moved, or the rig may not be shared with you.";
     } else {
       title = `${error.status} ${error.statusText || "Error"}`;
-      detail = typeof error.data === "string" ? error.data : (error.data?.message ?? detail);
+      detail = thrownMessage(error.data) ?? detail;
     }
   } else if (import.meta.env.DEV && error instanceof Error) {
     detail = error.message;

@@ -106,3 +106,55 @@ pg_down() {
 
 # port_free PORT: fails when something already listens on 127.0.0.1:PORT.
 port_free() { ! (exec 3<>"/dev/tcp/127.0.0.1/$1") 2>/dev/null; }
+
+# ---- the local stack that `npm start` and `npm run dev` share ------------------------------
+
+# local_stack_env: the settings both use (each may be set from outside).
+local_stack_env() {
+  export PORT="${PORT:-3000}"
+  export HOST="${HOST:-127.0.0.1}" # react-router-serve and Vite listen on loopback only unless told otherwise
+  export PGPORT="${PGPORT:-54329}"
+  export DATABASE_URL="${DATABASE_URL:-postgres://tilldawn@127.0.0.1:$PGPORT/tilldawn}"
+  export APP_URL="${APP_URL:-http://127.0.0.1:$PORT}"
+  export SMTP_PORT="${SMTP_PORT:-2525}"
+  export PHOTOS_S3_PORT="${PHOTOS_S3_PORT:-4569}"
+  export PHOTOS_S3_DIR="${PHOTOS_S3_DIR:-$ROOT/.data/s3}"
+  DATA_DIR="${TILLDAWN_DATA_DIR:-$ROOT/.data/dev}"
+}
+
+# local_stack_up COMMAND: checks the settings, then starts PostgreSQL, migrates, seeds and
+# starts the local fakes. The children run in sessions of their own (their ids in PIDS): a
+# Ctrl-C reaches only the calling script, which stops them once, in order, and PostgreSQL last.
+local_stack_up() {
+  ensure_node_modules
+  # Check the configuration before anything starts, so a bad value gives a clear message.
+  node --import tsx scripts/check-env.ts || exit 1
+  port_free "$PORT" || die "Port $PORT is taken by another program. Set PORT to a free port (e.g. PORT=3001 $1)."
+  ensure_postgres
+  PIDS=()
+  trap local_stack_down EXIT
+  trap 'local_stack_down 0' INT TERM
+  pg_up "$DATA_DIR/pg" "$PGPORT" tilldawn
+  node --import tsx scripts/migrate.ts || exit 1
+  # The fakes start before the seed: it uploads the demo rig's photos to the S3 fake.
+  if [ -f scripts/fakes.ts ]; then
+    setsid node --import tsx scripts/fakes.ts & PIDS+=($!)
+    if [ -z "${PHOTOS_S3_BUCKET:-}${PHOTOS_S3_ENDPOINT:-}" ]; then
+      node scripts/wait-ready.mjs "http://127.0.0.1:$PHOTOS_S3_PORT/" 20000 || die "The S3 fake did not start on port $PHOTOS_S3_PORT (set PHOTOS_S3_PORT to a free port)"
+    fi
+  fi
+  node --import tsx scripts/seed.ts || exit 1
+  node --import tsx scripts/photo-sweep.ts || true
+  # The alert worker (pg-boss jobs: evaluate, the minute sweep, push and e-mail delivery).
+  setsid node --import tsx scripts/worker.ts & PIDS+=($!)
+}
+
+local_stack_down() {
+  local code="${1:-$?}"
+  trap - EXIT INT TERM
+  log "Stopping"
+  for pid in "${PIDS[@]}"; do kill "$pid" 2>/dev/null; done
+  wait 2>/dev/null
+  pg_down "$DATA_DIR/pg"
+  exit "$code"
+}

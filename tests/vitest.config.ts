@@ -42,6 +42,8 @@ export default defineConfig({
           testTimeout: 60_000,
           hookTimeout: 60_000,
           fileParallelism: false,
+          // A browser on a busy machine can take more than the default second to reach a state.
+          expect: { poll: { timeout: 10_000 } },
         },
       },
     ],

@@ -6,7 +6,7 @@ import { and, eq } from "drizzle-orm";
 import { data } from "react-router";
 import { getDb, type Db } from "~/db/db.server";
 import { rigMembers, rigs } from "~/db/schema";
-import { apiError } from "~/lib/http";
+import { apiError, notFound } from "~/lib/http";
 import { isUuid } from "~/lib/ids";
 import { hasRole, type Role } from "./roles";
 import { getUser, isApiRequest, requireUser, type SessionUser } from "./session.server";
@@ -24,7 +24,7 @@ async function findMembership(db: Db, rigId: string, userId: string) {
 
 export function rigNotFound(request: Request): never {
   if (isApiRequest(request)) throw apiError(404, "not_found", "There is no such rig, or it is not shared with you.");
-  throw data({ message: "There is no such rig, or it is not shared with you." }, { status: 404 });
+  throw notFound("There is no such rig, or it is not shared with you.");
 }
 
 export function forbidden(request: Request, message: string): never {

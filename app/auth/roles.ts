@@ -1,9 +1,18 @@
-/** Roles per rig, in rising order of what they may do (PRODUCT.md). Shared by server and UI. */
-export const rigRoles = ["guest", "crew", "owner"] as const;
+/**
+ * Roles per rig (PRODUCT.md): the one list, shared by the database enum (`app/db/schema.ts`),
+ * the forms, the sync protocol and the phone's store. Listed in the database enum's order.
+ */
+import { z } from "zod";
+
+export const rigRoles = ["owner", "crew", "guest"] as const;
 export type Role = (typeof rigRoles)[number];
+export const roleSchema = z.enum(rigRoles, { error: "Choose owner, crew or guest." });
+
+/** What a role may do, rising: guest < crew < owner. */
+const rank: Record<Role, number> = { guest: 0, crew: 1, owner: 2 };
 
 export function roleRank(role: Role): number {
-  return rigRoles.indexOf(role);
+  return rank[role];
 }
 
 /** True when `role` is at least `minimum` (guest < crew < owner). */

@@ -10,6 +10,7 @@ import { getDb, type Db } from "~/db/db.server";
 import { sessions, userPreferences, users } from "~/db/schema";
 import { getEnv } from "~/env.server";
 import { apiError } from "~/lib/http";
+import { defaultPreferences, type Preferences } from "~/schemas/account";
 
 export const SESSION_COOKIE = "tilldawn_session";
 export const SESSION_DAYS = 30;
@@ -39,19 +40,7 @@ export type SessionUser = {
   email: string;
   name: string;
   sessionId: string;
-  preferences: {
-    lengthUnit: "metric" | "imperial";
-    cableUnit: "awg" | "mm2";
-    temperatureUnit: "c" | "f";
-    nightDefault: boolean;
-  };
-};
-
-const defaultPreferences: SessionUser["preferences"] = {
-  lengthUnit: "metric",
-  cableUnit: "mm2",
-  temperatureUnit: "c",
-  nightDefault: false,
+  preferences: Preferences;
 };
 
 /** Creates a session row for a user and answers the Set-Cookie value that carries it. */

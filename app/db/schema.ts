@@ -21,11 +21,15 @@ import {
   uniqueIndex,
   uuid,
 } from "drizzle-orm/pg-core";
+// Relative imports: drizzle-kit reads this file without the app's "~/" alias.
+import { rigRoles } from "../auth/roles";
+import { cableUnits, defaultPreferences, lengthUnits, temperatureUnits } from "../schemas/account";
+import { socSources } from "../schemas/rig-state";
 
 const createdAt = () => timestamp("created_at", { withTimezone: true }).notNull().defaultNow();
 const id = () => uuid("id").primaryKey().defaultRandom();
 
-export const rigRole = pgEnum("rig_role", ["owner", "crew", "guest"]);
+export const rigRole = pgEnum("rig_role", rigRoles);
 export const branchKind = pgEnum("branch_kind", ["as_built", "draft"]);
 
 export const users = pgTable(
@@ -109,19 +113,19 @@ export const modelRevisions = pgTable(
 
 /* ------------------------------------------------------ accounts and sharing */
 
-export const lengthUnit = pgEnum("length_unit", ["metric", "imperial"]);
-export const cableUnit = pgEnum("cable_unit", ["awg", "mm2"]);
-export const temperatureUnit = pgEnum("temperature_unit", ["c", "f"]);
+export const lengthUnit = pgEnum("length_unit", lengthUnits);
+export const cableUnit = pgEnum("cable_unit", cableUnits);
+export const temperatureUnit = pgEnum("temperature_unit", temperatureUnits);
 
 /** One person's display preferences (a row per user, created on first save). */
 export const userPreferences = pgTable("user_preferences", {
   userId: uuid("user_id")
     .primaryKey()
     .references(() => users.id, { onDelete: "cascade" }),
-  lengthUnit: lengthUnit("length_unit").notNull().default("metric"),
-  cableUnit: cableUnit("cable_unit").notNull().default("mm2"),
-  temperatureUnit: temperatureUnit("temperature_unit").notNull().default("c"),
-  nightDefault: boolean("night_default").notNull().default(false),
+  lengthUnit: lengthUnit("length_unit").notNull().default(defaultPreferences.lengthUnit),
+  cableUnit: cableUnit("cable_unit").notNull().default(defaultPreferences.cableUnit),
+  temperatureUnit: temperatureUnit("temperature_unit").notNull().default(defaultPreferences.temperatureUnit),
+  nightDefault: boolean("night_default").notNull().default(defaultPreferences.nightDefault),
   updatedAt: timestamp("updated_at", { withTimezone: true }).notNull().defaultNow(),
 });
 
@@ -190,7 +194,7 @@ export const rigInvites = pgTable(
 
 /* ------------------------------------------------------ shared rig state (Now) */
 
-export const socSource = pgEnum("soc_source", ["entered", "resting_voltage", "logbook"]);
+export const socSource = pgEnum("soc_source", socSources);
 
 /**
  * The one shared picture of a rig right now: which loads are switched on, the chosen mode, the

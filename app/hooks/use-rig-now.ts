@@ -16,8 +16,9 @@ import {
   type StateChange,
   type StateWriteResult,
 } from "~/schemas/rig-state";
+import type { Role } from "~/auth/roles";
 
-export type Role = "owner" | "crew" | "guest";
+export type { Role };
 
 export interface RigModelPayload {
   rigId: string;

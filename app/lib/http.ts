@@ -42,3 +42,26 @@ export async function readJson(request: Request): Promise<{ ok: true; body: unkn
     return { ok: false, response: apiError(400, "invalid_json", "The request body is not valid JSON.") };
   }
 }
+
+/* ------------------------------------------------------------ small answers */
+
+/** 400 with the API's error shape: the request is malformed or breaks a rule. */
+export function badRequest(code: string, message: string, issues?: ApiError["error"]["issues"]) {
+  return apiError(400, code, message, issues);
+}
+
+/** 409 with the API's error shape; `extra` carries what the caller needs to retry (e.g. `revision`). */
+export function conflict(code: string, message: string, extra: Record<string, unknown> = {}) {
+  return Response.json({ error: { code, message }, ...extra }, { status: 409 });
+}
+
+/** The human message inside a thrown answer: page-shaped `{ message }` or API-shaped `{ error: { message } }`. */
+export function thrownMessage(body: unknown): string | null {
+  if (typeof body === "string") return body;
+  if (body && typeof body === "object") {
+    const { message, error } = body as { message?: unknown; error?: { message?: unknown } };
+    if (typeof message === "string") return message;
+    if (error && typeof error.message === "string") return error.message;
+  }
+  return null;
+}

@@ -7,11 +7,12 @@
  * never edit an old version's schema.
  */
 import Dexie, { type EntityTable, type Table } from "dexie";
+import type { Role } from "~/auth/roles";
 import type { RigModel } from "~/engine/model";
 import type { RigState } from "~/schemas/rig-state";
 import type { ChangeKind } from "./protocol";
 
-export type Role = "owner" | "crew" | "guest";
+export type { Role };
 
 /** A rig this person can see, and their role on it (as last told by the server). */
 export type LocalRig = { id: string; name: string; role: Role | null; userId: string | null; seenAt: number };

@@ -180,15 +180,21 @@ export async function acceptInvite(db: Db, token: string, user: { id: string; em
   });
 }
 
+/** Takes the rig's membership lock and reads one member's row; not on the rig → `not_member`. */
+async function lockAndRequireMember(tx: Tx, rigId: string, userId: string) {
+  await lockRig(tx, rigId);
+  const [member] = await tx
+    .select({ role: rigMembers.role })
+    .from(rigMembers)
+    .where(and(eq(rigMembers.rigId, rigId), eq(rigMembers.userId, userId)));
+  if (!member) throw new MembershipError("not_member", "That person is not on this rig.");
+  return member;
+}
+
 /** Changes a member's role; refuses to take the rig's last owner away. */
 export async function changeRole(db: Db, rigId: string, userId: string, role: Role) {
   await db.transaction(async (tx) => {
-    await lockRig(tx, rigId);
-    const [member] = await tx
-      .select({ role: rigMembers.role })
-      .from(rigMembers)
-      .where(and(eq(rigMembers.rigId, rigId), eq(rigMembers.userId, userId)));
-    if (!member) throw new MembershipError("not_member", "That person is not on this rig.");
+    const member = await lockAndRequireMember(tx, rigId, userId);
     if (member.role === "owner" && role !== "owner" && (await ownerCount(tx, rigId)) <= 1) {
       throw new MembershipError("last_owner", "A rig needs at least one owner. Make someone else owner first.");
     }
@@ -199,12 +205,7 @@ export async function changeRole(db: Db, rigId: string, userId: string, role: Ro
 /** Removes a member (an owner removing someone, or a member leaving); never the last owner. */
 export async function removeMember(db: Db, rigId: string, userId: string) {
   await db.transaction(async (tx) => {
-    await lockRig(tx, rigId);
-    const [member] = await tx
-      .select({ role: rigMembers.role })
-      .from(rigMembers)
-      .where(and(eq(rigMembers.rigId, rigId), eq(rigMembers.userId, userId)));
-    if (!member) throw new MembershipError("not_member", "That person is not on this rig.");
+    const member = await lockAndRequireMember(tx, rigId, userId);
     if (member.role === "owner" && (await ownerCount(tx, rigId)) <= 1) {
       throw new MembershipError(
         "last_owner",

@@ -2,8 +2,10 @@ import { and, asc, eq, sql } from "drizzle-orm";
 import type { Db } from "~/db/db.server";
 import { modelBranches, modelRevisions, rigMembers, rigs } from "~/db/schema";
 import { SCHEMA_VERSION, type RigModel } from "~/engine/model";
+import type { Role } from "~/auth/roles";
 
-export type RigRole = (typeof rigMembers.$inferSelect)["role"];
+/** The role on a rig (kept as a name for the repositories; the one list is `~/auth/roles`). */
+export type RigRole = Role;
 
 /** Thrown when a save names a revision that is no longer the head (answer 409). */
 export class StaleRevisionError extends Error {

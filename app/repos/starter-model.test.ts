@@ -14,8 +14,16 @@ describe("A new rig's starter model", () => {
     expect(model.name).toBe("Kestrel");
   });
 
-  test("keeps a given time zone and home position", () => {
+  test("keeps the time zone and home position it is given, through the engine's validation", () => {
     const checked = validateModel(starterModel({ name: "Tern", timeZone: "Europe/Lisbon", latDeg: 38.7, lonDeg: -9.1 }));
-    expect(checked.ok).toBe(true);
+    if (!checked.ok) throw new Error(JSON.stringify(checked.issues));
+    expect(checked.model.timeZone).toBe("Europe/Lisbon");
+    expect(checked.model.home).toEqual({ latDeg: 38.7, lonDeg: -9.1 });
+  });
+
+  test("starts in UTC at 0°, 0° when no time zone or home is given", () => {
+    const model = starterModel({ name: "Kestrel" });
+    expect(model.timeZone).toBe("UTC");
+    expect(model.home).toEqual({ latDeg: 0, lonDeg: 0 });
   });
 });

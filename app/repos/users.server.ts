@@ -1,21 +1,7 @@
-import { eq } from "drizzle-orm";
-import { z } from "zod";
+import { count, eq } from "drizzle-orm";
 import type { Db } from "~/db/db.server";
-import { userPreferences, users } from "~/db/schema";
-
-export const nameSchema = z
-  .string({ error: "Enter your name." })
-  .trim()
-  .min(1, "Enter the name your crew knows you by.")
-  .max(80, "Keep the name under 80 characters.");
-
-export const preferencesSchema = z.object({
-  lengthUnit: z.enum(["metric", "imperial"], { error: "Choose metric or imperial." }),
-  cableUnit: z.enum(["awg", "mm2"], { error: "Choose AWG or mm²." }),
-  temperatureUnit: z.enum(["c", "f"], { error: "Choose °C or °F." }),
-  nightDefault: z.boolean(),
-});
-export type Preferences = z.infer<typeof preferencesSchema>;
+import { sessions, userPreferences, users } from "~/db/schema";
+import type { Preferences } from "~/schemas/account";
 
 export async function setName(db: Db, userId: string, name: string) {
   await db.update(users).set({ name }).where(eq(users.id, userId));
@@ -26,4 +12,10 @@ export async function savePreferences(db: Db, userId: string, prefs: Preferences
     .insert(userPreferences)
     .values({ userId, ...prefs })
     .onConflictDoUpdate({ target: userPreferences.userId, set: { ...prefs, updatedAt: new Date() } });
+}
+
+/** How many browsers and devices the person is signed in on (at least the one asking). */
+export async function countSessions(db: Db, userId: string): Promise<number> {
+  const [row] = await db.select({ n: count() }).from(sessions).where(eq(sessions.userId, userId));
+  return Math.max(row?.n ?? 0, 1);
 }

@@ -1,92 +1,26 @@
-import { data, Form, redirect, useActionData, useNavigation } from "react-router";
-import { count, eq } from "drizzle-orm";
+import { useForm } from "@conform-to/react";
+import { parseWithZod } from "@conform-to/zod/v4";
+import { Form, useActionData, useNavigation } from "react-router";
 import type { Route } from "./+types/account";
 import { protectedAction } from "~/auth/csrf.server";
-import { clearSessionCookie, endAllSessions, requireUser } from "~/auth/session.server";
+import { requireUser } from "~/auth/session.server";
 import { getDb } from "~/db/db.server";
-import { sessions } from "~/db/schema";
-import { deleteAccount, RigSetChangedError, soleOwnedRigs } from "~/repos/members.server";
-import { nameSchema, preferencesSchema, savePreferences, setName } from "~/repos/users.server";
+import { soleOwnedRigs } from "~/repos/members.server";
+import { countSessions } from "~/repos/users.server";
+import { answerFor, fieldProps, formError } from "~/lib/forms";
+import { ACCOUNT_INTENT, deleteAccountFormSchema, preferencesFormSchema, profileFormSchema } from "~/schemas/account";
 import { Button, Card, Field, Notice } from "~/components/ui/form";
+import { accountAction, type AccountAnswer, type AccountIntent } from "./account.server";
 
 /** GET /account — name, e-mail, units, night mode, signing out, deleting the account. */
 export async function loader({ request }: Route.LoaderArgs) {
   const user = await requireUser(request);
   const db = getDb();
-  const [soleRigs, [sessionCount]] = await Promise.all([
-    soleOwnedRigs(db, user.id),
-    db.select({ n: count() }).from(sessions).where(eq(sessions.userId, user.id)),
-  ]);
-  return { name: user.name, email: user.email, preferences: user.preferences, soleRigs, sessions: sessionCount?.n ?? 1 };
+  const [soleRigs, sessionCount] = await Promise.all([soleOwnedRigs(db, user.id), countSessions(db, user.id)]);
+  return { name: user.name, email: user.email, preferences: user.preferences, soleRigs, sessions: sessionCount };
 }
 
-type AccountAnswer = {
-  intent: string;
-  ok?: string;
-  error?: string;
-  fieldErrors?: Record<string, string | undefined>;
-  values?: Record<string, string>;
-  soleRigs?: { id: string; name: string }[];
-};
-
-export const action = protectedAction(async ({ request }: Route.ActionArgs) => {
-  const user = await requireUser(request);
-  const db = getDb();
-  const form = await request.formData();
-  const intent = String(form.get("intent") ?? "");
-  const answer = (status: number, rest: Omit<AccountAnswer, "intent">) => data<AccountAnswer>({ intent, ...rest }, { status });
-  switch (intent) {
-    case "profile": {
-      const typed = String(form.get("name") ?? "");
-      const parsed = nameSchema.safeParse(typed);
-      if (!parsed.success) return answer(400, { values: { name: typed }, fieldErrors: { name: parsed.error.issues[0]?.message } });
-      await setName(db, user.id, parsed.data);
-      return answer(200, { ok: "Name saved." });
-    }
-    case "preferences": {
-      const parsed = preferencesSchema.safeParse({
-        lengthUnit: form.get("lengthUnit"),
-        cableUnit: form.get("cableUnit"),
-        temperatureUnit: form.get("temperatureUnit"),
-        nightDefault: form.get("nightDefault") === "on",
-      });
-      if (!parsed.success) {
-        const fieldErrors = Object.fromEntries(parsed.error.issues.map((i) => [String(i.path[0]), i.message]));
-        return answer(400, { error: "Check the highlighted choices.", fieldErrors });
-      }
-      await savePreferences(db, user.id, parsed.data);
-      return answer(200, { ok: "Preferences saved." });
-    }
-    case "sign-out-everywhere": {
-      await endAllSessions(db, user.id);
-      return redirect("/", { headers: { "Set-Cookie": await clearSessionCookie() } });
-    }
-    case "delete": {
-      const confirmed = form.get("confirm") === "on";
-      const rigIds = String(form.get("rigIds") ?? "").split(",").filter(Boolean);
-      if (!confirmed) {
-        return answer(400, {
-          soleRigs: await soleOwnedRigs(db, user.id),
-          fieldErrors: { confirm: "Tick the box to confirm that you want to delete your account." },
-        });
-      }
-      try {
-        await deleteAccount(db, user.id, rigIds);
-      } catch (error) {
-        if (error instanceof RigSetChangedError) {
-          return answer(409, {
-            soleRigs: error.rigs,
-            error: "The rigs that would be deleted with your account have changed. Check the list again, then confirm.",
-          });
-        }
-        throw error;
-      }
-      return redirect("/", { headers: { "Set-Cookie": await clearSessionCookie() } });
-    }
-    default:
-      return answer(400, { error: "Unknown request." });
-  }
-});
+export const action = protectedAction(accountAction);
 
 export function meta() {
   return [{ title: "Account · Tilldawn" }];
@@ -115,15 +49,36 @@ export default function Account({ loaderData }: Route.ComponentProps) {
   const navigation = useNavigation();
   const busy = navigation.state === "submitting" ? String(navigation.formData?.get("intent") ?? "") : "";
   const soleRigs = answer?.soleRigs ?? loaderData.soleRigs;
-  const notice = (intent: string) =>
-    answer?.intent === intent ? (
+  const [profileForm, profile] = useForm({
+    id: ACCOUNT_INTENT.profile,
+    lastResult: answerFor(answer, ACCOUNT_INTENT.profile),
+    defaultValue: { name },
+    onValidate: ({ formData }) => parseWithZod(formData, { schema: profileFormSchema }),
+    shouldValidate: "onSubmit",
+  });
+  const [preferencesForm, prefs] = useForm({
+    id: ACCOUNT_INTENT.preferences,
+    lastResult: answerFor(answer, ACCOUNT_INTENT.preferences),
+    onValidate: ({ formData }) => parseWithZod(formData, { schema: preferencesFormSchema }),
+    shouldValidate: "onSubmit",
+  });
+  const [deleteForm, deletion] = useForm({
+    id: ACCOUNT_INTENT.delete,
+    lastResult: answerFor(answer, ACCOUNT_INTENT.delete),
+    onValidate: ({ formData }) => parseWithZod(formData, { schema: deleteAccountFormSchema }),
+    shouldValidate: "onSubmit",
+  });
+  const notice = (intent: AccountIntent) => {
+    const result = answerFor(answer, intent);
+    const error = formError(result);
+    return (
       <div aria-live="polite">
-        {answer.ok ? <Notice tone="done">{answer.ok}</Notice> : null}
-        {answer.error ? <Notice tone="error">{answer.error}</Notice> : null}
+        {result && answer?.ok ? <Notice tone="done">{answer.ok}</Notice> : null}
+        {error ? <Notice tone="error">{error}</Notice> : null}
       </div>
-    ) : (
-      <div aria-live="polite" />
     );
+  };
+  const confirmError = deletion.confirm.errors?.[0];
 
   return (
     <div className="space-y-6">
@@ -131,44 +86,43 @@ export default function Account({ loaderData }: Route.ComponentProps) {
 
       <Card>
         <h2 className="text-xl font-bold">You</h2>
-        {notice("profile")}
+        {notice(ACCOUNT_INTENT.profile)}
         <p className="text-night-200">
           E-mail: <strong>{email}</strong>
         </p>
-        <Form method="post" className="space-y-4" noValidate>
-          <input type="hidden" name="intent" value="profile" />
+        <Form method="post" id={profileForm.id} onSubmit={profileForm.onSubmit} className="space-y-4" noValidate>
+          <input type="hidden" name="intent" value={ACCOUNT_INTENT.profile} />
           <Field
             label="Name"
-            name="name"
+            key={profile.name.key}
+            {...fieldProps(profile.name, name)}
             autoComplete="name"
             maxLength={80}
             required
-            defaultValue={answer?.intent === "profile" && answer.values ? answer.values.name : name}
-            error={answer?.intent === "profile" ? answer.fieldErrors?.name : undefined}
           />
-          <Button type="submit" disabled={busy === "profile"}>
-            {busy === "profile" ? "Saving…" : "Save name"}
+          <Button type="submit" disabled={busy === ACCOUNT_INTENT.profile}>
+            {busy === ACCOUNT_INTENT.profile ? "Saving…" : "Save name"}
           </Button>
         </Form>
       </Card>
 
       <Card>
         <h2 className="text-xl font-bold">Units and display</h2>
-        {notice("preferences")}
-        <Form method="post" className="space-y-4">
-          <input type="hidden" name="intent" value="preferences" />
-          <Choice legend="Lengths" name="lengthUnit" value={preferences.lengthUnit} options={[["metric", "Metres"], ["imperial", "Feet"]]} error={answer?.fieldErrors?.lengthUnit} />
-          <Choice legend="Cable sizes" name="cableUnit" value={preferences.cableUnit} options={[["mm2", "mm²"], ["awg", "AWG"]]} error={answer?.fieldErrors?.cableUnit} />
-          <Choice legend="Temperatures" name="temperatureUnit" value={preferences.temperatureUnit} options={[["c", "°C"], ["f", "°F"]]} error={answer?.fieldErrors?.temperatureUnit} />
+        {notice(ACCOUNT_INTENT.preferences)}
+        <Form method="post" id={preferencesForm.id} onSubmit={preferencesForm.onSubmit} className="space-y-4">
+          <input type="hidden" name="intent" value={ACCOUNT_INTENT.preferences} />
+          <Choice legend="Lengths" name={prefs.lengthUnit.name} value={preferences.lengthUnit} options={[["metric", "Metres"], ["imperial", "Feet"]]} error={prefs.lengthUnit.errors?.[0]} />
+          <Choice legend="Cable sizes" name={prefs.cableUnit.name} value={preferences.cableUnit} options={[["mm2", "mm²"], ["awg", "AWG"]]} error={prefs.cableUnit.errors?.[0]} />
+          <Choice legend="Temperatures" name={prefs.temperatureUnit.name} value={preferences.temperatureUnit} options={[["c", "°C"], ["f", "°F"]]} error={prefs.temperatureUnit.errors?.[0]} />
           <label className="flex min-h-12 items-center gap-3">
-            <input type="checkbox" name="nightDefault" defaultChecked={preferences.nightDefault} className="size-5" />
+            <input type="checkbox" name={prefs.nightDefault.name} defaultChecked={preferences.nightDefault} className="size-5" />
             <span>
               <span className="block font-bold">Start in red night mode</span>
               <span className="block text-sm text-night-300">On devices where you have not switched night mode yourself.</span>
             </span>
           </label>
-          <Button type="submit" disabled={busy === "preferences"}>
-            {busy === "preferences" ? "Saving…" : "Save preferences"}
+          <Button type="submit" disabled={busy === ACCOUNT_INTENT.preferences}>
+            {busy === ACCOUNT_INTENT.preferences ? "Saving…" : "Save preferences"}
           </Button>
         </Form>
       </Card>
@@ -185,7 +139,7 @@ export default function Account({ loaderData }: Route.ComponentProps) {
             </Button>
           </Form>
           <Form method="post">
-            <input type="hidden" name="intent" value="sign-out-everywhere" />
+            <input type="hidden" name="intent" value={ACCOUNT_INTENT.signOutEverywhere} />
             <Button type="submit" variant="quiet">
               Sign out everywhere
             </Button>
@@ -195,7 +149,7 @@ export default function Account({ loaderData }: Route.ComponentProps) {
 
       <Card className="border-ember-500">
         <h2 className="text-xl font-bold">Delete account</h2>
-        {notice("delete")}
+        {notice(ACCOUNT_INTENT.delete)}
         {soleRigs.length ? (
           <div className="space-y-2 text-night-200">
             <p>You are the only owner of these rigs. They are deleted with your account, for everyone on them:</p>
@@ -209,16 +163,18 @@ export default function Account({ loaderData }: Route.ComponentProps) {
         ) : (
           <p className="text-night-200">Rigs you share with other owners stay with them.</p>
         )}
-        <Form method="post" className="space-y-3">
-          <input type="hidden" name="intent" value="delete" />
-          <input type="hidden" name="rigIds" value={soleRigs.map((r) => r.id).join(",")} />
+        <Form method="post" id={deleteForm.id} onSubmit={deleteForm.onSubmit} className="space-y-3">
+          <input type="hidden" name="intent" value={ACCOUNT_INTENT.delete} />
+          <input type="hidden" name={deletion.rigIds.name} value={soleRigs.map((r) => r.id).join(",")} />
           <label className="flex min-h-12 items-center gap-3">
             <input
               type="checkbox"
-              name="confirm"
+              name={deletion.confirm.name}
+              // A new list of rigs asks for a new confirmation: the box starts unticked again.
+              key={`${deletion.confirm.key}-${soleRigs.map((r) => r.id).join(",")}`}
               className="size-5"
-              aria-invalid={answer?.fieldErrors?.confirm ? true : undefined}
-              aria-describedby={answer?.fieldErrors?.confirm ? "confirm-error" : undefined}
+              aria-invalid={confirmError ? true : undefined}
+              aria-describedby={confirmError ? "confirm-error" : undefined}
             />
             <span>
               {soleRigs.length
@@ -226,13 +182,13 @@ export default function Account({ loaderData }: Route.ComponentProps) {
                 : "Delete my account"}
             </span>
           </label>
-          {answer?.fieldErrors?.confirm ? (
+          {confirmError ? (
             <p id="confirm-error" className="text-sm font-bold text-ember-300">
-              {answer.fieldErrors.confirm}
+              {confirmError}
             </p>
           ) : null}
-          <Button type="submit" variant="danger" disabled={busy === "delete"}>
-            {busy === "delete" ? "Deleting…" : "Delete account"}
+          <Button type="submit" variant="danger" disabled={busy === ACCOUNT_INTENT.delete}>
+            {busy === ACCOUNT_INTENT.delete ? "Deleting…" : "Delete account"}
           </Button>
         </Form>
       </Card>

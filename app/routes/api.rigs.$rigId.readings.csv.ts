@@ -2,7 +2,7 @@ import type { Route } from "./+types/api.rigs.$rigId.readings.csv";
 import Papa from "papaparse";
 import { requireRigRole } from "~/auth/guards.server";
 import { getDb } from "~/db/db.server";
-import { apiError } from "~/lib/http";
+import { badRequest } from "~/lib/http";
 import { walkReadings } from "~/repos/readings.server";
 
 const CSV_COLUMNS = ["taken_at", "bank_voltage_v", "current_a", "soc_pct", "temperature_c", "solar_wh_today", "note", "source", "id"];
@@ -22,7 +22,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   const to = url.searchParams.get("to");
   const range = { from: from ? new Date(from) : undefined, to: to ? new Date(to) : undefined };
   if ((range.from && isNaN(range.from.getTime())) || (range.to && isNaN(range.to.getTime()))) {
-    return apiError(400, "invalid_range", "Give from and to as ISO dates, e.g. 2025-10-01.");
+    return badRequest("invalid_range", "Give from and to as ISO dates, e.g. 2025-10-01.");
   }
   const pages = walkReadings(db, access.rig.id, range);
   const encoder = new TextEncoder();

@@ -2,7 +2,7 @@ import type { Route } from "./+types/api.rigs.$rigId.readings";
 import { z } from "zod";
 import { requireRigRole } from "~/auth/guards.server";
 import { getDb } from "~/db/db.server";
-import { apiError, issuesOf } from "~/lib/http";
+import { badRequest, issuesOf } from "~/lib/http";
 import { listReadings, readingSeries, toWire } from "~/repos/readings.server";
 
 const DAY_MS = 86_400_000;
@@ -27,13 +27,13 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   const db = getDb();
   const access = await requireRigRole(request, params.rigId, "guest", db);
   const parsed = querySchema.safeParse(Object.fromEntries(new URL(request.url).searchParams));
-  if (!parsed.success) return apiError(400, "invalid_query", "The query is not valid.", issuesOf(parsed.error));
+  if (!parsed.success) return badRequest("invalid_query", "The query is not valid.", issuesOf(parsed.error));
   const q = parsed.data;
   const headers = { "cache-control": "private, no-store" };
   if (q.view === "series") {
     const to = q.to ? new Date(q.to) : new Date();
     const from = q.from ? new Date(q.from) : new Date(to.getTime() - 7 * DAY_MS);
-    if (from >= to) return apiError(400, "invalid_range", "The start of the range must be before its end.");
+    if (from >= to) return badRequest("invalid_range", "The start of the range must be before its end.");
     const series = await readingSeries(db, access.rig.id, { from, to }, q.points);
     return Response.json({ from: from.toISOString(), to: to.toISOString(), ...series }, { headers });
   }

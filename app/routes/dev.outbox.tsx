@@ -1,4 +1,4 @@
-import { data } from "react-router";
+import { notFound } from "~/lib/http";
 import type { Route } from "./+types/dev.outbox";
 import { getEnv } from "~/env.server";
 import { extractSignIn, readOutbox } from "~/mail/outbox.server";
@@ -8,7 +8,7 @@ import { extractSignIn, readOutbox } from "~/mail/outbox.server";
  * sends to the fake (SMTP_URL unset); with real SMTP settings it answers 404.
  */
 export async function loader() {
-  if (!getEnv().devOutbox) throw data({ message: "There is nothing at this address." }, { status: 404 });
+  if (!getEnv().devOutbox) throw notFound("There is nothing at this address.");
   const messages = await readOutbox(50);
   return {
     messages: messages.map((m) => ({ ...m, ...extractSignIn(m.text) })),

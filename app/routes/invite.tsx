@@ -5,6 +5,7 @@ import { roleHelp, roleLabel } from "~/auth/roles";
 import { getUser, requireUser } from "~/auth/session.server";
 import { getDb } from "~/db/db.server";
 import { acceptInvite, findInvite, inviteProblem, MembershipError } from "~/repos/members.server";
+import { notFound } from "~/lib/http";
 import { Button, Notice } from "~/components/ui/form";
 
 /**
@@ -13,7 +14,7 @@ import { Button, Notice } from "~/components/ui/form";
  */
 export async function loader({ request, params }: Route.LoaderArgs) {
   const invite = await findInvite(getDb(), params.token);
-  if (!invite) throw data({ message: "This invitation link is not valid. Check that it was copied whole." }, { status: 404 });
+  if (!invite) throw notFound("This invitation link is not valid. Check that it was copied whole.");
   if (invite.status !== "pending") throw data({ message: inviteProblem[invite.status] }, { status: 410 });
   const user = await getUser(request);
   return {

@@ -1,7 +1,7 @@
-import { data } from "react-router";
+import { notFound } from "~/lib/http";
 
 export function loader() {
-  throw data({ message: "There is nothing at this address." }, { status: 404 });
+  throw notFound("There is nothing at this address.");
 }
 
 export default function NotFound() {

@@ -1,9 +1,8 @@
-import { data, Link } from "react-router";
+import { Link } from "react-router";
 import type { Route } from "./+types/rig.budget";
 import { requireRigRole } from "~/auth/guards.server";
 import { getDb } from "~/db/db.server";
-import { validateModel } from "~/engine/model";
-import { getAsBuilt } from "~/repos/rigs.server";
+import { requireAsBuiltModel } from "~/repos/models.server";
 import { getRigState } from "~/repos/rig-state.server";
 import { BudgetView } from "~/components/budget/budget-view";
 
@@ -11,10 +10,8 @@ import { BudgetView } from "~/components/budget/budget-view";
 export async function loader({ request, params }: Route.LoaderArgs) {
   const db = getDb();
   const access = await requireRigRole(request, params.rigId, "guest", db);
-  const [asBuilt, state] = await Promise.all([getAsBuilt(db, access.rig.id), getRigState(db, access.rig.id)]);
-  const checked = asBuilt ? validateModel(asBuilt.document) : null;
-  if (!checked?.ok) throw data({ message: "This rig's model could not be read." }, { status: 500 });
-  return { rig: access.rig, model: checked.model, state, nowMs: Math.floor(Date.now() / 60_000) * 60_000 };
+  const [{ model }, state] = await Promise.all([requireAsBuiltModel(db, access.rig.id), getRigState(db, access.rig.id)]);
+  return { rig: access.rig, model, state, nowMs: Math.floor(Date.now() / 60_000) * 60_000 };
 }
 
 /** Offline first: the server's copy when it answers, else the one kept on the phone by Now. */

@@ -1,20 +1,16 @@
-import { data } from "react-router";
 import { Link } from "react-router";
 import type { Route } from "./+types/rig.model";
 import { requireRigRole } from "~/auth/guards.server";
 import { getDb } from "~/db/db.server";
-import { getAsBuilt } from "~/repos/rigs.server";
-import { validateModel } from "~/engine/model";
+import { requireAsBuiltModel } from "~/repos/models.server";
 import { RigOverview } from "~/components/rig-overview";
 
 /** The rig as built: its banks and loads (the former rig overview). */
 export async function loader({ request, params }: Route.LoaderArgs) {
   const db = getDb();
   const access = await requireRigRole(request, params.rigId, "guest", db);
-  const asBuilt = await getAsBuilt(db, access.rig.id);
-  const checked = asBuilt ? validateModel(asBuilt.document) : null;
-  if (!checked?.ok) throw data({ message: "This rig's model could not be read." }, { status: 500 });
-  return { rig: access.rig, model: checked.model, revision: asBuilt!.revision };
+  const { model, revision } = await requireAsBuiltModel(db, access.rig.id);
+  return { rig: access.rig, model, revision };
 }
 
 /** Offline first: the server's copy when it answers, else the one kept on the phone by Now. */

@@ -1,9 +1,9 @@
-import { data, isRouteErrorResponse, Link } from "react-router";
+import { isRouteErrorResponse, Link } from "react-router";
 import type { Route } from "./+types/rig";
 import { requireRigRole } from "~/auth/guards.server";
 import { getDb } from "~/db/db.server";
-import { validateModel } from "~/engine/model";
-import { getAsBuilt } from "~/repos/rigs.server";
+import { thrownMessage } from "~/lib/http";
+import { requireAsBuiltModel } from "~/repos/models.server";
 import { getLatestReading, getRigState } from "~/repos/rig-state.server";
 import { NowScreen } from "~/components/now/now-screen";
 import { useModeEdit, useRigModel, useRigState, type RigModelPayload, type RigStatePayload } from "~/hooks/use-rig-now";
@@ -13,13 +13,11 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   const db = getDb();
   const access = await requireRigRole(request, params.rigId, "guest", db);
   const [asBuilt, state, latestReading] = await Promise.all([
-    getAsBuilt(db, access.rig.id),
+    requireAsBuiltModel(db, access.rig.id),
     getRigState(db, access.rig.id),
     getLatestReading(db, access.rig.id),
   ]);
-  const checked = asBuilt ? validateModel(asBuilt.document) : null;
-  if (!asBuilt || !checked?.ok) throw data({ message: "This rig's model could not be read." }, { status: 500 });
-  const model: RigModelPayload = { rigId: access.rig.id, name: access.rig.name, revision: asBuilt.revision, model: checked.model, role: access.role };
+  const model: RigModelPayload = { rigId: access.rig.id, name: access.rig.name, revision: asBuilt.revision, model: asBuilt.model, role: access.role };
   const shared: RigStatePayload = { state, latestReading, role: access.role };
   return { model, shared, nowMs: Date.now() };
 }
@@ -70,7 +68,7 @@ export default function RigNow({ loaderData }: Route.ComponentProps) {
 
 export function ErrorBoundary({ error }: Route.ErrorBoundaryProps) {
   const status = isRouteErrorResponse(error) ? error.status : 500;
-  const message = isRouteErrorResponse(error) ? (typeof error.data === "string" ? error.data : error.data?.message) : null;
+  const message = isRouteErrorResponse(error) ? thrownMessage(error.data) : null;
   return (
     <div role="alert" className="space-y-3 rounded-2xl border border-ember-500 bg-night-900 p-4">
       <h1 className="text-2xl font-bold">{status === 404 ? "No such rig" : status === 403 ? "Not allowed" : "The Now screen could not load"}</h1>

@@ -1,19 +1,16 @@
+import { useForm } from "@conform-to/react";
+import { parseWithZod } from "@conform-to/zod/v4";
 import { data, Form, redirect, useActionData, useNavigation } from "react-router";
-import { z } from "zod";
 import type { Route } from "./+types/rigs";
 import { protectedAction } from "~/auth/csrf.server";
 import { requireUser } from "~/auth/session.server";
 import { getDb } from "~/db/db.server";
 import { createRig, listRigsForUser } from "~/repos/rigs.server";
 import { starterModel } from "~/repos/starter-model";
+import { fieldProps } from "~/lib/forms";
+import { createRigFormSchema } from "~/schemas/rigs";
 import { RigList } from "~/components/account/rig-list";
 import { Button, Card, Field } from "~/components/ui/form";
-
-const rigNameSchema = z
-  .string({ error: "Name the rig." })
-  .trim()
-  .min(1, "Name the rig, e.g. the van's or the boat's name.")
-  .max(80, "Keep the name under 80 characters.");
 
 /** GET /rigs — the rigs this person is on, with their role; POST creates one they own. */
 export async function loader({ request }: Route.LoaderArgs) {
@@ -24,16 +21,10 @@ export async function loader({ request }: Route.LoaderArgs) {
 
 export const action = protectedAction(async ({ request }: Route.ActionArgs) => {
   const user = await requireUser(request);
-  const form = await request.formData();
-  const typed = String(form.get("name") ?? "");
-  const parsed = rigNameSchema.safeParse(typed);
-  if (!parsed.success) return data({ values: { name: typed }, error: parsed.error.issues[0]?.message }, { status: 400 });
-  const { rig } = await createRig(getDb(), {
-    name: parsed.data,
-    ownerId: user.id,
-    document: starterModel({ name: parsed.data }),
-    message: "New rig",
-  });
+  const submission = parseWithZod(await request.formData(), { schema: createRigFormSchema });
+  if (submission.status !== "success") return data({ result: submission.reply() }, { status: 400 });
+  const { name } = submission.value;
+  const { rig } = await createRig(getDb(), { name, ownerId: user.id, document: starterModel({ name }), message: "New rig" });
   return redirect(`/rigs/${rig.id}`);
 });
 
@@ -45,6 +36,11 @@ export default function Rigs({ loaderData }: Route.ComponentProps) {
   const { rigs } = loaderData;
   const answer = useActionData<typeof action>();
   const busy = useNavigation().state === "submitting";
+  const [form, fields] = useForm({
+    lastResult: answer?.result,
+    onValidate: ({ formData }) => parseWithZod(formData, { schema: createRigFormSchema }),
+    shouldValidate: "onSubmit",
+  });
   return (
     <div className="space-y-6">
       <h1 className="text-3xl font-bold">Rigs</h1>
@@ -63,15 +59,14 @@ export default function Rigs({ loaderData }: Route.ComponentProps) {
           You become its owner. It starts with one 100 Ah LiFePO4 house bank and a main DC bus, ready for you to record
           it as built.
         </p>
-        <Form method="post" className="space-y-4" noValidate>
+        <Form method="post" id={form.id} onSubmit={form.onSubmit} className="space-y-4" noValidate>
           <Field
             label="Rig name"
-            name="name"
+            key={fields.name.key}
+            {...fieldProps(fields.name)}
             required
             maxLength={80}
             placeholder="e.g. Kestrel"
-            defaultValue={answer?.values.name ?? ""}
-            error={answer?.error}
           />
           <Button type="submit" disabled={busy}>
             {busy ? "Creating…" : "Create rig"}

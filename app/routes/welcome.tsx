@@ -1,9 +1,13 @@
+import { useForm } from "@conform-to/react";
+import { parseWithZod } from "@conform-to/zod/v4";
 import { data, Form, redirect, useActionData, useNavigation } from "react-router";
 import type { Route } from "./+types/welcome";
 import { protectedAction } from "~/auth/csrf.server";
 import { requireUser, safeRedirect } from "~/auth/session.server";
 import { getDb } from "~/db/db.server";
-import { nameSchema, setName } from "~/repos/users.server";
+import { setName } from "~/repos/users.server";
+import { fieldProps } from "~/lib/forms";
+import { profileFormSchema } from "~/schemas/account";
 import { Button, Field } from "~/components/ui/form";
 
 /** GET /welcome — asked once, after a first sign-in: the name the crew will see. */
@@ -18,11 +22,9 @@ export const action = protectedAction(async ({ request }: Route.ActionArgs) => {
   const user = await requireUser(request);
   const form = await request.formData();
   const redirectTo = safeRedirect(form.get("redirectTo"));
-  const parsed = nameSchema.safeParse(form.get("name"));
-  if (!parsed.success) {
-    return data({ values: { name: String(form.get("name") ?? "") }, error: parsed.error.issues[0]?.message }, { status: 400 });
-  }
-  await setName(getDb(), user.id, parsed.data);
+  const submission = parseWithZod(form, { schema: profileFormSchema });
+  if (submission.status !== "success") return data({ result: submission.reply() }, { status: 400 });
+  await setName(getDb(), user.id, submission.value.name);
   return redirect(redirectTo);
 });
 
@@ -33,6 +35,11 @@ export function meta() {
 export default function Welcome({ loaderData }: Route.ComponentProps) {
   const answer = useActionData<typeof action>();
   const busy = useNavigation().state !== "idle";
+  const [form, fields] = useForm({
+    lastResult: answer?.result,
+    onValidate: ({ formData }) => parseWithZod(formData, { schema: profileFormSchema }),
+    shouldValidate: "onSubmit",
+  });
   return (
     <div className="mx-auto max-w-md space-y-6">
       <header className="space-y-1">
@@ -42,17 +49,16 @@ export default function Welcome({ loaderData }: Route.ComponentProps) {
           You are signed in as {loaderData.email}. People you share a rig with see this name.
         </p>
       </header>
-      <Form method="post" className="space-y-4" noValidate>
+      <Form method="post" id={form.id} onSubmit={form.onSubmit} className="space-y-4" noValidate>
         <input type="hidden" name="redirectTo" value={loaderData.redirectTo} />
         <Field
           label="Your name"
-          name="name"
+          key={fields.name.key}
+          {...fieldProps(fields.name)}
           autoComplete="name"
           required
           autoFocus
           maxLength={80}
-          defaultValue={answer?.values.name ?? ""}
-          error={answer?.error}
         />
         <Button type="submit" className="w-full" disabled={busy}>
           {busy ? "Saving…" : "Continue"}

@@ -34,7 +34,9 @@ export function weatherFactor(w: Weather): number {
   return w.kind === "percent" ? w.pct / 100 : WEATHER_FACTORS[w.kind];
 }
 
-export const socSourceSchema = z.enum(["entered", "resting_voltage", "logbook"]);
+/** Where a SoC entry came from (also the database enum `soc_source`). */
+export const socSources = ["entered", "resting_voltage", "logbook"] as const;
+export const socSourceSchema = z.enum(socSources);
 export type SocSource = z.infer<typeof socSourceSchema>;
 
 export const socEntrySchema = z.object({

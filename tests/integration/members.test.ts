@@ -16,7 +16,7 @@ import {
   RigSetChangedError,
   soleOwnedRigs,
 } from "~/repos/members.server";
-import * as membersRoute from "~/routes/members";
+import * as membersRoute from "~/routes/rig.members";
 import * as inviteRoute from "~/routes/invite";
 import * as rigsRoute from "~/routes/rigs";
 import * as accountRoute from "~/routes/account";
@@ -61,12 +61,12 @@ describe("Creating a rig", () => {
     expect(validateModel(asBuilt!.document).ok).toBe(true);
   });
 
-  test("an empty name is answered 400 with a message, nothing created", async () => {
+  test("an empty name is answered 400 with a message and nothing is created", async () => {
     const ada = await makeUser(db, "Ada");
     const cookie = await sessionCookieFor(db, ada.id);
     const res = await callRoute(rigsRoute.action, { path: "/rigs", cookie, form: { name: "   " } });
     expect(res.status).toBe(400);
-    expect(res.body).toMatchObject({ error: expect.stringMatching(/Name the rig/) });
+    expect(res.body).toMatchObject({ result: { status: "error", error: { name: [expect.stringMatching(/Name the rig/)] } } });
     expect(await listRigsForUser(db, ada.id)).toEqual([]);
   });
 });
@@ -157,10 +157,13 @@ describe("Invitations", () => {
       form: { intent: "invite", email: ada.email, role: "crew" },
     });
     expect(res.status).toBe(400);
-    expect(res.body).toMatchObject({ error: expect.stringMatching(/already on this rig/), values: { email: ada.email, role: "crew" } });
+    expect(res.body).toMatchObject({
+      intent: "invite",
+      result: { error: { "": [expect.stringMatching(/already on this rig/)] }, initialValue: { email: ada.email, role: "crew" } },
+    });
   });
 
-  test("an unknown token is 404", async () => {
+  test("an unknown token is answered 404", async () => {
     const token = "x".repeat(43);
     const res = await callRoute(inviteRoute.loader, { path: `/invites/${token}`, params: { token } });
     expect(res.status).toBe(404);
@@ -180,7 +183,7 @@ describe("A rig always keeps an owner", () => {
       form: { intent: "leave" },
     });
     expect(left.status).toBe(400);
-    expect(left.body).toMatchObject({ error: expect.stringMatching(/at least one owner/) });
+    expect(left.body).toMatchObject({ intent: "leave", result: { error: { "": [expect.stringMatching(/at least one owner/)] } } });
   });
 
   test("with two owners, one may step down; when both try at once, exactly one succeeds", async () => {
@@ -230,7 +233,7 @@ describe("A rig always keeps an owner", () => {
 });
 
 describe("Deleting an account", () => {
-  test("deletes the rigs the person alone owns, after a confirmation naming them; shared rigs stay", async () => {
+  test("deleting an account deletes the rigs the person alone owns, after a confirmation naming them; shared rigs stay", async () => {
     const ada = await makeUser(db, "Ada");
     const sam = await makeUser(db, "Sam");
     const mine = await rigOf(ada.id, "Solo van");
@@ -246,9 +249,10 @@ describe("Deleting an account", () => {
 
     const unconfirmed = await callRoute(accountRoute.action, { path: "/account", cookie, form: { intent: "delete", rigIds: mine.id } });
     expect(unconfirmed.status).toBe(400);
+    expect(unconfirmed.body).toMatchObject({ result: { error: { confirm: [expect.stringMatching(/Tick the box/)] } } });
     const stale = await callRoute(accountRoute.action, { path: "/account", cookie, form: { intent: "delete", rigIds: "", confirm: "on" } });
     expect(stale.status).toBe(409);
-    expect(stale.body).toMatchObject({ soleRigs: [{ name: "Solo van" }] });
+    expect(stale.body).toMatchObject({ soleRigs: [{ name: "Solo van" }], result: { error: { "": [expect.stringMatching(/have changed/)] } } });
 
     const done = await callRoute(accountRoute.action, { path: "/account", cookie, form: { intent: "delete", rigIds: mine.id, confirm: "on" } });
     expect(done.status).toBe(302);
@@ -257,7 +261,7 @@ describe("Deleting an account", () => {
     expect(await listRigsForUser(db, sam.id)).toEqual([expect.objectContaining({ id: shared.id, role: "owner" })]);
   });
 
-  test("refuses when the set of rigs changed after the person confirmed", async () => {
+  test("deleting is refused when the set of rigs changed after the person confirmed", async () => {
     const ada = await makeUser(db, "Ada");
     const rig = await rigOf(ada.id);
     await expect(deleteAccount(db, ada.id, [])).rejects.toBeInstanceOf(RigSetChangedError);

@@ -65,7 +65,7 @@ export const permissionMatrix: Record<string, RouteRow> = {
   "routes/rig.log.tsx": { note: clientOnly },
   "routes/rig.log.import.tsx": { note: clientOnly },
   "routes/rig.log.$readingId.tsx": { note: clientOnly },
-  "routes/members.tsx": {
+  "routes/rig.members.tsx": {
     GET: { expect: members() },
     POST: { expect: ownerOnly(), form: () => ({ intent: "invite", email: "not an address", role: "guest" }) },
   },
@@ -91,9 +91,9 @@ export const permissionMatrix: Record<string, RouteRow> = {
   },
   "routes/api.rigs.$rigId.readings.ts": { GET: { expect: members() } },
   "routes/api.rigs.$rigId.readings.csv.ts": { GET: { expect: members() } },
-  "routes/api.rigs.model.ts": { GET: { expect: members() } },
-  "routes/api.rigs.state.ts": { GET: { expect: members() }, POST: { expect: crewUp(), json: () => ({}) } },
-  "routes/api.rigs.modes.ts": { GET: { expect: "notAllowed" }, POST: { expect: ownerOnly(), json: () => ({}) } },
+  "routes/api.rigs.$rigId.model.ts": { GET: { expect: members() } },
+  "routes/api.rigs.$rigId.state.ts": { GET: { expect: members() }, POST: { expect: crewUp(), json: () => ({}) } },
+  "routes/api.rigs.$rigId.modes.ts": { GET: { expect: "notAllowed" }, POST: { expect: ownerOnly(), json: () => ({}) } },
   // Alerts and devices (issue 13)
   "routes/rig.alerts.tsx": {
     note: "Warn me, own choices and the alert log for every member; rules and device tokens for owners.",

@@ -12,10 +12,11 @@ const { rigMembers, switchChanges, users, rigState } = await import("~/db/schema
 const { createSession } = await import("~/auth/session.server");
 const { createRig, getAsBuilt } = await import("~/repos/rigs.server");
 const { writeRigState, getRigState } = await import("~/repos/rig-state.server");
-const stateRoute = await import("~/routes/api.rigs.state");
-const modesRoute = await import("~/routes/api.rigs.modes");
-const modelRoute = await import("~/routes/api.rigs.model");
+const stateRoute = await import("~/routes/api.rigs.$rigId.state");
+const modesRoute = await import("~/routes/api.rigs.$rigId.modes");
+const modelRoute = await import("~/routes/api.rigs.$rigId.model");
 const { juniperModel } = await import("../fixtures/juniper");
+const { demoPeopleTagged } = await import("../fixtures/demo");
 
 const origin = "http://127.0.0.1:3000";
 
@@ -23,12 +24,7 @@ async function juniper() {
   const tag = crypto.randomUUID().slice(0, 8);
   const people = await db
     .insert(users)
-    .values([
-      { email: `ada-${tag}@juniper.example`, name: "Ada" },
-      { email: `sam-${tag}@juniper.example`, name: "Sam" },
-      { email: `noor-${tag}@juniper.example`, name: "Noor" },
-      { email: `stranger-${tag}@elsewhere.example`, name: "Stranger" },
-    ])
+    .values([...demoPeopleTagged(tag).map(({ email, name }) => ({ email, name })), { email: `stranger-${tag}@elsewhere.example`, name: "Stranger" }])
     .returning();
   const [ada, sam, noor, stranger] = people as [(typeof people)[number], (typeof people)[number], (typeof people)[number], (typeof people)[number]];
   const { rig } = await createRig(db, { name: `Juniper ${tag}`, ownerId: ada.id, document: juniperModel });
@@ -128,7 +124,7 @@ describe("Shared rig state: who may read and write", () => {
 });
 
 describe("Shared rig state: bad input is answered with a clear 4xx and nothing is lost", () => {
-  test("malformed JSON, a wrong content type, an unknown load, an SoC above 100 % and a future reading", async () => {
+  test("malformed JSON, a wrong content type, an unknown load, an SoC above 100 % and a future reading are each refused with a 4xx", async () => {
     const j = await juniper();
     await postState(j.rig.id, { cookie: j.sam.cookie, body: switchFridge(false) });
     const cases: Array<[Call, number, string]> = [

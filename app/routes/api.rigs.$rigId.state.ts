@@ -1,12 +1,11 @@
-import type { Route } from "./+types/api.rigs.state";
+import type { Route } from "./+types/api.rigs.$rigId.state";
 import { protectedAction } from "~/auth/csrf.server";
 import { requireRigRole } from "~/auth/guards.server";
 import { getDb } from "~/db/db.server";
-import { validateModel } from "~/engine/model";
-import { apiError, issuesOf, readJson } from "~/lib/http";
-import { getLatestReading, getRigState, writeRigState } from "~/repos/rig-state.server";
-import { recordServerChange } from "~/repos/sync.server";
-import { getAsBuilt } from "~/repos/rigs.server";
+import { apiError, badRequest, issuesOf, readJson } from "~/lib/http";
+import { writeRigStateAndLog } from "~/repos/logged-writes.server";
+import { requireAsBuiltModel } from "~/repos/models.server";
+import { getLatestReading, getRigState } from "~/repos/rig-state.server";
 import { checkChangeAgainstModel, stateWriteSchema } from "~/schemas/rig-state";
 import { requestEvaluation } from "~/alerts/queue.server";
 import { getEnv } from "~/env.server";
@@ -34,16 +33,14 @@ export const action = protectedAction(async ({ request, params }: Route.ActionAr
   const body = await readJson(request);
   if (!body.ok) return body.response;
   const parsed = stateWriteSchema.safeParse(body.body);
-  if (!parsed.success) return apiError(400, "invalid_change", "The change does not have the expected shape.", issuesOf(parsed.error));
-  const asBuilt = await getAsBuilt(db, access.rig.id);
-  const checked = asBuilt ? validateModel(asBuilt.document) : null;
-  if (!checked?.ok) return apiError(500, "model_unreadable", "This rig's model could not be read.");
-  const issues = checkChangeAgainstModel(checked.model, parsed.data.change);
-  if (issues.length) return apiError(400, "invalid_change", issues[0]!.message, issues);
-  const result = await writeRigState(db, { rigId: access.rig.id, userId: access.user.id, write: parsed.data, model: checked.model, receivedAt });
-  // Phones that sync hear of it too (the Now screen's own refetch covers the open screens).
-  await recordServerChange(db, { rigId: access.rig.id, authorId: access.user.id, kind: "state.write", entityId: "state" });
-  // Alerts (issue 13): switches, mode or SoC changed → evaluate the rig's rules soon.
+  if (!parsed.success) return badRequest("invalid_change", "The change does not have the expected shape.", issuesOf(parsed.error));
+  const { model } = await requireAsBuiltModel(db, access.rig.id);
+  const issues = checkChangeAgainstModel(model, parsed.data.change);
+  if (issues.length) return badRequest("invalid_change", issues[0]!.message, issues);
+  // Written with its change-log entry, so phones that sync hear of it too.
+  const result = await writeRigStateAndLog(db, { rigId: access.rig.id, userId: access.user.id, write: parsed.data, model, receivedAt });
+  // Alerts: switches, mode or SoC changed → evaluate the rig's rules soon.
   void requestEvaluation(getEnv().DATABASE_URL, access.rig.id);
+app/routes/api.rigs.$rigId.state.ts
   return Response.json(result, { headers: noStore });
 });

@@ -1,25 +1,16 @@
-import { data, Form, redirect, useActionData, useNavigation } from "react-router";
-import { z } from "zod";
-import type { Route } from "./+types/members";
+import { useForm } from "@conform-to/react";
+import { parseWithZod } from "@conform-to/zod/v4";
+import { Form, useActionData, useNavigation } from "react-router";
+import type { Route } from "./+types/rig.members";
 import { protectedAction } from "~/auth/csrf.server";
 import { requireRigRole } from "~/auth/guards.server";
 import { roleHelp, roleLabel, rigRoles, type Role } from "~/auth/roles";
-import { emailSchema } from "~/auth/sign-in.server";
 import { getDb } from "~/db/db.server";
-import { appOrigin } from "~/env.server";
-import { isUuid } from "~/lib/ids";
-import { MailError, sendMail } from "~/mail/mailer.server";
-import { inviteMail } from "~/mail/templates";
-import {
-  changeRole,
-  createInvite,
-  listMembers,
-  listPendingInvites,
-  MembershipError,
-  removeMember,
-  revokeInvite,
-} from "~/repos/members.server";
+import { answerFor, fieldProps, formError } from "~/lib/forms";
+import { listMembers, listPendingInvites } from "~/repos/members.server";
+import { inviteFormSchema, MEMBERS_INTENT } from "~/schemas/members";
 import { Button, Card, Field, Notice } from "~/components/ui/form";
+import { membersAction, type MembersAnswer } from "./rig.members.server";
 
 /** GET /rigs/:rigId/members — everyone on the rig sees who is on it; owners also manage it. */
 export async function loader({ request, params }: Route.LoaderArgs) {
@@ -32,92 +23,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   return { rig, role, me: user.id, members, invites };
 }
 
-type ActionAnswer = {
-  intent: string;
-  ok?: string;
-  error?: string;
-  fieldErrors?: { email?: string; role?: string };
-  values?: { email: string; role: string };
-};
-
-const roleSchema = z.enum(rigRoles, { error: "Choose owner, crew or guest." });
-
-export const action = protectedAction(async ({ request, params }: Route.ActionArgs) => {
-  const form = await request.formData();
-  const intent = String(form.get("intent") ?? "");
-  // Leaving is for every member; everything else here is for owners.
-  const { user, rig } = await requireRigRole(request, params.rigId, intent === "leave" ? "guest" : "owner");
-  const db = getDb();
-  const fail = (status: number, answer: Omit<ActionAnswer, "intent">) => data<ActionAnswer>({ intent, ...answer }, { status });
-  try {
-    switch (intent) {
-      case "invite": {
-        const values = { email: String(form.get("email") ?? ""), role: String(form.get("role") ?? "") };
-        const email = emailSchema.safeParse(values.email);
-        const role = roleSchema.safeParse(values.role);
-        if (!email.success || !role.success) {
-          return fail(400, {
-            values,
-            fieldErrors: { email: email.error?.issues[0]?.message, role: role.error?.issues[0]?.message },
-          });
-        }
-        const { invite, token } = await createInvite(db, { rigId: rig.id, email: email.data, role: role.data, invitedBy: user.id });
-        try {
-          await sendMail(
-            inviteMail({
-              to: invite.email,
-              rigName: rig.name,
-              inviterName: user.name || user.email,
-              role: roleLabel[invite.role].toLowerCase(),
-              link: `${appOrigin(request)}/invites/${token}`,
-              expiresAt: invite.expiresAt,
-            }),
-          );
-        } catch (error) {
-          if (!(error instanceof MailError)) throw error;
-          await revokeInvite(db, rig.id, invite.id);
-          return fail(503, { values, error: "The invitation e-mail could not be sent. Try again in a moment." });
-        }
-        return data<ActionAnswer>({ intent, ok: `Invitation sent to ${invite.email} as ${roleLabel[invite.role].toLowerCase()}.` });
-      }
-      case "revoke": {
-        const inviteId = String(form.get("inviteId") ?? "");
-        if (!isUuid(inviteId) || !(await revokeInvite(db, rig.id, inviteId))) {
-          return fail(404, { error: "That invitation is no longer pending." });
-        }
-        return data<ActionAnswer>({ intent, ok: "Invitation withdrawn. Its link no longer works." });
-      }
-      case "role": {
-        const userId = String(form.get("userId") ?? "");
-        const role = roleSchema.safeParse(form.get("role"));
-        if (!isUuid(userId) || !role.success) return fail(400, { error: "Choose a member and a role." });
-        await changeRole(db, rig.id, userId, role.data);
-        return data<ActionAnswer>({ intent, ok: `Role changed to ${roleLabel[role.data].toLowerCase()}.` });
-      }
-      case "remove": {
-        const userId = String(form.get("userId") ?? "");
-        if (!isUuid(userId)) return fail(400, { error: "Choose a member." });
-        await removeMember(db, rig.id, userId);
-        if (userId === user.id) return redirect("/rigs");
-        return data<ActionAnswer>({ intent, ok: "Removed from the rig." });
-      }
-      case "leave": {
-        await removeMember(db, rig.id, user.id);
-        return redirect("/rigs");
-      }
-      default:
-        return fail(400, { error: "Unknown request." });
-    }
-  } catch (error) {
-    if (error instanceof MembershipError) {
-      return fail(error.code === "not_member" ? 404 : 400, {
-        error: error.message,
-        values: intent === "invite" ? { email: String(form.get("email") ?? ""), role: String(form.get("role") ?? "") } : undefined,
-      });
-    }
-    throw error;
-  }
-});
+export const action = protectedAction(membersAction);
 
 export function meta({ data }: Route.MetaArgs) {
   return [{ title: data ? `People on ${data.rig.name} · Tilldawn` : "Tilldawn" }];
@@ -127,22 +33,34 @@ const dateFormat = new Intl.DateTimeFormat("en-GB", { day: "numeric", month: "sh
 
 export default function Members({ loaderData }: Route.ComponentProps) {
   const { rig, role, me, members, invites } = loaderData;
-  const answer = useActionData<ActionAnswer>();
+  const answer = useActionData<MembersAnswer>();
   const navigation = useNavigation();
   const busyIntent = navigation.state === "submitting" ? String(navigation.formData?.get("intent") ?? "") : "";
   const isOwner = role === "owner";
-  const inviteAnswer = answer?.intent === "invite" ? answer : undefined;
+  const [inviteForm, invite] = useForm({
+    id: MEMBERS_INTENT.invite,
+    lastResult: answerFor(answer, MEMBERS_INTENT.invite),
+    defaultValue: { role: "crew" },
+    onValidate: ({ formData }) => parseWithZod(formData, { schema: inviteFormSchema }),
+    shouldValidate: "onSubmit",
+  });
+  const pageError = formError(answer?.result);
+  const inviteRole = invite.role.initialValue ?? "crew";
 
   return (
     <div className="space-y-6">
       <header className="space-y-1">
         <p className="text-sm font-bold uppercase tracking-widest text-dawn-400">{rig.name}</p>
         <h1 className="text-3xl font-bold">People on this rig</h1>
+        {/* Warn me, the alert log and device tokens live on the rig's Alerts page. */}
+        <a href={`/rigs/${rig.id}/alerts`} className="inline-flex min-h-11 items-center font-bold text-dawn-300 underline underline-offset-4">
+          Alerts: warn me before the cutoff
+        </a>
       </header>
 
       <div aria-live="polite" className="space-y-2">
         {answer?.ok ? <Notice tone="done">{answer.ok}</Notice> : null}
-        {answer?.error ? <Notice tone="error">{answer.error}</Notice> : null}
+        {pageError ? <Notice tone="error">{pageError}</Notice> : null}
       </div>
 
       <ul className="divide-y divide-night-800 rounded-2xl border border-night-700 bg-night-900" aria-label="Members">
@@ -163,7 +81,7 @@ export default function Members({ loaderData }: Route.ComponentProps) {
             {isOwner ? (
               <div className="flex flex-wrap items-end gap-2">
                 <Form method="post" className="flex items-end gap-2">
-                  <input type="hidden" name="intent" value="role" />
+                  <input type="hidden" name="intent" value={MEMBERS_INTENT.role} />
                   <input type="hidden" name="userId" value={m.userId} />
                   <label className="space-y-1">
                     <span className="block text-sm font-bold">Role of {m.name || m.email}</span>
@@ -185,7 +103,7 @@ export default function Members({ loaderData }: Route.ComponentProps) {
                 </Form>
                 {m.userId !== me ? (
                   <Form method="post">
-                    <input type="hidden" name="intent" value="remove" />
+                    <input type="hidden" name="intent" value={MEMBERS_INTENT.remove} />
                     <input type="hidden" name="userId" value={m.userId} />
                     <Button type="submit" variant="danger" aria-label={`Remove ${m.name || m.email} from the rig`}>
                       Remove
@@ -203,28 +121,26 @@ export default function Members({ loaderData }: Route.ComponentProps) {
           <Card>
             <h2 className="text-xl font-bold">Invite someone</h2>
             <p className="text-night-200">They get an e-mail with a link that works once, for 7 days.</p>
-            <Form method="post" className="space-y-4" noValidate>
-              <input type="hidden" name="intent" value="invite" />
+            <Form method="post" id={inviteForm.id} onSubmit={inviteForm.onSubmit} className="space-y-4" noValidate>
+              <input type="hidden" name="intent" value={MEMBERS_INTENT.invite} />
               <Field
                 label="Their e-mail address"
-                name="email"
+                key={invite.email.key}
+                {...fieldProps(invite.email)}
                 type="email"
                 inputMode="email"
                 autoComplete="off"
                 required
-                defaultValue={inviteAnswer?.values?.email ?? ""}
-                key={inviteAnswer?.ok ? "sent" : "editing"}
-                error={inviteAnswer?.fieldErrors?.email}
               />
-              <fieldset className="space-y-2" aria-describedby={inviteAnswer?.fieldErrors?.role ? "invite-role-error" : undefined}>
+              <fieldset className="space-y-2" aria-describedby={invite.role.errors ? "invite-role-error" : undefined} key={invite.role.key}>
                 <legend className="font-bold">Role</legend>
                 {(["crew", "guest", "owner"] as Role[]).map((r) => (
                   <label key={r} className="flex min-h-12 items-start gap-3 rounded-xl border border-night-700 p-3">
                     <input
                       type="radio"
-                      name="role"
+                      name={invite.role.name}
                       value={r}
-                      defaultChecked={(inviteAnswer?.values?.role ?? "crew") === r}
+                      defaultChecked={inviteRole === r}
                       className="mt-1 size-5"
                     />
                     <span>
@@ -233,14 +149,14 @@ export default function Members({ loaderData }: Route.ComponentProps) {
                     </span>
                   </label>
                 ))}
-                {inviteAnswer?.fieldErrors?.role ? (
+                {invite.role.errors ? (
                   <p id="invite-role-error" className="text-sm font-bold text-ember-300">
-                    {inviteAnswer.fieldErrors.role}
+                    {invite.role.errors[0]}
                   </p>
                 ) : null}
               </fieldset>
-              <Button type="submit" disabled={busyIntent === "invite"}>
-                {busyIntent === "invite" ? "Sending…" : "Send invitation"}
+              <Button type="submit" disabled={busyIntent === MEMBERS_INTENT.invite}>
+                {busyIntent === MEMBERS_INTENT.invite ? "Sending…" : "Send invitation"}
               </Button>
             </Form>
           </Card>
@@ -260,7 +176,7 @@ export default function Members({ loaderData }: Route.ComponentProps) {
                       </span>
                     </span>
                     <Form method="post">
-                      <input type="hidden" name="intent" value="revoke" />
+                      <input type="hidden" name="intent" value={MEMBERS_INTENT.revoke} />
                       <input type="hidden" name="inviteId" value={inv.id} />
                       <Button type="submit" variant="danger" aria-label={`Withdraw the invitation to ${inv.email}`}>
                         Withdraw
@@ -282,7 +198,7 @@ export default function Members({ loaderData }: Route.ComponentProps) {
             : "You stop seeing this rig. An owner can invite you again."}
         </p>
         <Form method="post">
-          <input type="hidden" name="intent" value="leave" />
+          <input type="hidden" name="intent" value={MEMBERS_INTENT.leave} />
           <Button type="submit" variant="danger">
             Leave {rig.name}
           </Button>
