@@ -41,6 +41,5 @@ export const action = protectedAction(async ({ request, params }: Route.ActionAr
   const result = await writeRigStateAndLog(db, { rigId: access.rig.id, userId: access.user.id, write: parsed.data, model, receivedAt });
   // Alerts: switches, mode or SoC changed → evaluate the rig's rules soon.
   void requestEvaluation(getEnv().DATABASE_URL, access.rig.id);
-app/routes/api.rigs.$rigId.state.ts
   return Response.json(result, { headers: noStore });
 });
