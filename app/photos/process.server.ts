@@ -105,10 +105,10 @@ export async function processPhoto(bytes: Uint8Array, options: { keepLocation: b
     else pipeline = pipeline.keepIccProfile();
     const encoded =
       type.mime === "image/jpeg"
-        ? pipeline.jpeg({ quality: 90, mozjpeg: true })
+        ? pipeline.jpeg({ quality: 90 })
         : type.mime === "image/png"
-          ? pipeline.png({ compressionLevel: 9 })
-          : pipeline.webp({ quality: 90 });
+          ? pipeline.png()
+          : pipeline.webp({ quality: 90, effort: 1 });
     const { data: original, info } = await encoded.toBuffer({ resolveWithObject: true });
     const thumb = await sharp(original)
       .resize(THUMB_MAX_PX, THUMB_MAX_PX, { fit: "inside", withoutEnlargement: true })

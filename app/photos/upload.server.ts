@@ -12,12 +12,30 @@ import { deletePhotoRow, insertPhoto, toPhotoView, type PhotoTarget, type PhotoV
 import { photoKeys, type PhotoStore } from "~/storage/photo-store.server";
 import { processPhoto } from "./process.server";
 
+/** At most this many pictures are decoded at once (each can take 100+ MB while sharp works). */
+const PROCESSING_SLOTS = 2;
+let busy = 0;
+const waiting: Array<() => void> = [];
+
+async function inSlot<T>(work: () => Promise<T>): Promise<T> {
+  // A finished picture hands its slot straight to the next one waiting.
+  if (busy >= PROCESSING_SLOTS) await new Promise<void>((resolve) => waiting.push(resolve));
+  else busy += 1;
+  try {
+    return await work();
+  } finally {
+    const next = waiting.shift();
+    if (next) next();
+    else busy -= 1;
+  }
+}
+
 export async function storePhoto(
   db: Db,
   store: PhotoStore,
   input: { rigId: string; authorId: string | null; target: PhotoTarget; caption: string; keepLocation: boolean; bytes: Uint8Array },
 ): Promise<PhotoView> {
-  const processed = await processPhoto(input.bytes, { keepLocation: input.keepLocation });
+  const processed = await inSlot(() => processPhoto(input.bytes, { keepLocation: input.keepLocation }));
   const id = crypto.randomUUID();
   const keys = photoKeys(input.rigId, id, processed.ext);
   try {
