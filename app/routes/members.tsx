@@ -138,6 +138,10 @@ export default function Members({ loaderData }: Route.ComponentProps) {
       <header className="space-y-1">
         <p className="text-sm font-bold uppercase tracking-widest text-dawn-400">{rig.name}</p>
         <h1 className="text-3xl font-bold">People on this rig</h1>
+        {/* Alerts (issue 13): Warn me, the alert log and device tokens live on the rig's Alerts page. */}
+        <a href={`/rigs/${rig.id}/alerts`} className="inline-flex min-h-11 items-center font-bold text-dawn-300 underline underline-offset-4">
+          Alerts: warn me before the cutoff
+        </a>
       </header>
 
       <div aria-live="polite" className="space-y-2">
