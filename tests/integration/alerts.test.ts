@@ -8,7 +8,7 @@ import { evaluateRig, evaluateTimeBased } from "~/alerts/evaluate.server";
 import { alertDeliveries, alertEpisodes, pushSubscriptions } from "~/db/schema";
 import type { Mail } from "~/mail/mailer.server";
 import { sendPush } from "~/push/send.server";
-import { listAlertLog, savePreferences } from "~/repos/alerts.server";
+import { getRigRules, listAlertLog, savePreferences, saveRigRules, stopAlerts } from "~/repos/alerts.server";
 import { createDeviceToken } from "~/repos/devices.server";
 import * as pushRoute from "~/routes/api.rigs.$rigId.push";
 import * as ingestRoute from "~/routes/api.v1.rigs.$rigId.readings";
@@ -190,5 +190,23 @@ describe("push alerts", () => {
     const episodes = await db.select().from(alertEpisodes).where(eq(alertEpisodes.rigId, j.rig.id));
     expect(later.rigs).toBeGreaterThan(0);
     expect(episodes.map((e) => e.rule).sort()).toEqual(["falls_short", "runway_low"]);
+  });
+
+  test("someone who stops alerts before the push goes out is not sent it; an owner turning a rule off ends its episode", async () => {
+    const j = await makeJuniper(db);
+    const sub = await subscribe(j.rig.id, j.guestCookie, `t-${crypto.randomUUID()}`);
+    const device = await createDeviceToken(db, { rigId: j.rig.id, name: "Shunt reader", createdBy: j.owner.id });
+    await post(j.rig.id, device.token, { takenAt: at(NIGHT_MS - 60_000), socPct: 20 });
+    const r = await evaluateRig(db, j.rig.id, NIGHT_MS, opts);
+    expect(r.deliveryIds.length).toBeGreaterThan(0);
+    await stopAlerts(db, j.rig.id, j.guest.id);
+    await deliverAll(r.deliveryIds);
+    const id = new URL((await db.select().from(pushSubscriptions).where(eq(pushSubscriptions.id, sub.subscriptionId)))[0]!.endpoint).pathname.split("/").pop()!;
+    expect(await received(fake.url, id)).toEqual([]);
+    const rules = await getRigRules(db, j.rig.id);
+    await saveRigRules(db, j.rig.id, { ...rules, runway_low: { ...rules.runway_low, enabled: false } }, j.owner.id);
+    const open = await db.select().from(alertEpisodes).where(and(eq(alertEpisodes.rigId, j.rig.id), eq(alertEpisodes.rule, "runway_low")));
+    expect(open.length).toBe(1);
+    expect(open[0]!.clearedAt).not.toBeNull();
   });
 });
