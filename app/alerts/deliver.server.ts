@@ -37,7 +37,14 @@ export async function deliverOne(db: Db, deliveryId: string, deps: DeliverDeps, 
   const body = clear ? (episode.clearBody ?? `All clear on ${episode.rigName}.`) : episode.body;
   const url = `${deps.appUrl.replace(/\/$/, "")}/rigs/${d.rigId}`;
 
+  const [prefs] = await db
+    .select({ token: alertPreferences.unsubscribeToken, email: alertPreferences.email, push: alertPreferences.push })
+    .from(alertPreferences)
+    .where(and(eq(alertPreferences.rigId, d.rigId), eq(alertPreferences.userId, d.userId ?? "00000000-0000-0000-0000-000000000000")));
+
   if (d.channel === "push") {
+    // The person may have stopped alerts (or push) since the delivery was written.
+    if (!prefs?.push) return finish(db, d.id, "gone", "push alerts were turned off");
     const [sub] = await db.select().from(pushSubscriptions).where(eq(pushSubscriptions.id, d.target));
     if (!sub) return finish(db, d.id, "gone", "this browser stopped receiving alerts");
     const outcome = await deps.sendPush(sub, { title, body, url, tag: `${episode.id}:${d.phase}` });
@@ -52,10 +59,6 @@ export async function deliverOne(db: Db, deliveryId: string, deps: DeliverDeps, 
     return retryOrFail(db, d.id, attempt.isLast, `push failed: ${outcome.status ?? "no answer"} ${outcome.message}`);
   }
 
-  const [prefs] = await db
-    .select({ token: alertPreferences.unsubscribeToken, email: alertPreferences.email })
-    .from(alertPreferences)
-    .where(and(eq(alertPreferences.rigId, d.rigId), eq(alertPreferences.userId, d.userId ?? "00000000-0000-0000-0000-000000000000")));
   if (!prefs?.email) return finish(db, d.id, "gone", "e-mail alerts were turned off");
   try {
     await deps.sendMail(alertEmail({ to: d.target, title, body, url, unsubscribeUrl: `${deps.appUrl.replace(/\/$/, "")}/alerts/unsubscribe/${prefs.token}` }));

@@ -18,6 +18,14 @@ export async function saveRigRules(db: Db, rigId: string, rules: RigRules, userI
     .insert(alertRules)
     .values({ rigId, rules, updatedBy: userId })
     .onConflictDoUpdate({ target: alertRules.rigId, set: { rules, updatedBy: userId, updatedAt: new Date() } });
+  // A rule turned off ends its open episode quietly (no all clear: nothing was resolved).
+  const off = Object.entries(rules).filter(([, r]) => !r.enabled).map(([k]) => k);
+  if (off.length) {
+    await db
+      .update(alertEpisodes)
+      .set({ clearedAt: new Date() })
+      .where(and(eq(alertEpisodes.rigId, rigId), inArray(alertEpisodes.rule, off), sql`${alertEpisodes.clearedAt} is null`));
+  }
 }
 
 export type StoredPreferences = Preferences & { unsubscribeToken: string };

@@ -10,23 +10,29 @@ import { isUuid } from "~/lib/ids";
 import { loadVapidKeys } from "~/push/vapid.server";
 import { getPreferences, getRigRules, listAlertLog, savePreferences, saveRigRules, stopAlerts } from "~/repos/alerts.server";
 import { createDeviceToken, listDeviceTokens, revokeDeviceToken } from "~/repos/devices.server";
+import { getAsBuilt } from "~/repos/rigs.server";
+import { validateModel } from "~/engine/model";
 
 /** GET /rigs/:rigId/alerts — "Warn me", one's own alert choices, the alert log (every member); rules and device tokens (owners). */
 export async function loader({ request, params }: Route.LoaderArgs) {
   const { user, role, rig } = await requireRigRole(request, params.rigId, "guest");
   const db = getDb();
-  const [prefs, rules, log, devices] = await Promise.all([
+  const [prefs, rules, log, devices, asBuilt] = await Promise.all([
     getPreferences(db, rig.id, user.id),
     getRigRules(db, rig.id),
     listAlertLog(db, rig.id, 30),
     role === "owner" ? listDeviceTokens(db, rig.id) : Promise.resolve([]),
+    role === "owner" ? getAsBuilt(db, rig.id) : Promise.resolve(null),
   ]);
+  const checked = asBuilt ? validateModel(asBuilt.document) : null;
+  const modes = checked?.ok ? checked.model.modes.map((m) => ({ id: m.id, name: m.name })) : [];
   return {
     rig,
     role,
     publicKey: loadVapidKeys().publicKey,
     prefs: prefs ? { ...prefs, unsubscribeToken: undefined } : null,
     rules,
+    modes,
     log,
     devices: devices.map((d) => ({ ...d, createdAt: d.createdAt.toISOString(), lastUsedAt: d.lastUsedAt?.toISOString() ?? null, revokedAt: d.revokedAt?.toISOString() ?? null })),
   };
@@ -70,7 +76,7 @@ export const action = protectedAction(async ({ request, params }: Route.ActionAr
         runway_low: { enabled: on("runway_low"), belowH: n("runway_low.belowH") ?? 3 },
         soc_low: { enabled: on("soc_low"), floorPct: n("soc_low.floorPct") },
         voltage_low: { enabled: on("voltage_low"), belowV: n("voltage_low.belowV") },
-        no_reading: { enabled: on("no_reading"), afterH: n("no_reading.afterH") ?? 6, parkedModeIds: [] },
+        no_reading: { enabled: on("no_reading"), afterH: n("no_reading.afterH") ?? 6, parkedModeIds: form.getAll("no_reading.parkedModeIds").map(String) },
         charging_stopped: { enabled: on("charging_stopped") },
         falls_short: { enabled: on("falls_short") },
       });
@@ -103,7 +109,7 @@ const when = new Intl.DateTimeFormat("en-GB", { dateStyle: "medium", timeStyle: 
 const statusWords: Record<string, string> = { pending: "waiting", sending: "sending", sent: "delivered", retrying: "retrying", failed: "failed", gone: "not delivered (gone)", quiet: "held: quiet hours" };
 
 export default function RigAlerts({ loaderData }: Route.ComponentProps) {
-  const { rig, role, publicKey, prefs, rules, log, devices } = loaderData;
+  const { rig, role, publicKey, prefs, rules, modes, log, devices } = loaderData;
   const answer = useActionData<typeof action>() as Answer | undefined;
   const busy = useNavigation().state !== "idle";
   const p = prefs ?? DEFAULT_PREFERENCES;
@@ -174,7 +180,20 @@ export default function RigAlerts({ loaderData }: Route.ComponentProps) {
                 {k === "runway_low" ? <Field label="When the runway is below (h)" name="runway_low.belowH" type="number" step="0.25" min="0.25" defaultValue={rules.runway_low.belowH} /> : null}
                 {k === "soc_low" ? <Field label="Floor (%)" hint="Empty: the bank's usable floor" name="soc_low.floorPct" type="number" min="1" max="95" defaultValue={rules.soc_low.floorPct ?? ""} /> : null}
                 {k === "voltage_low" ? <Field label="Below (V)" hint="Empty: 12.0 V per 12 V of bank (trade practice)" name="voltage_low.belowV" type="number" step="0.1" defaultValue={rules.voltage_low.belowV ?? ""} /> : null}
-                {k === "no_reading" ? <Field label="After no reading for (h)" name="no_reading.afterH" type="number" step="0.5" min="0.25" defaultValue={rules.no_reading.afterH} /> : null}
+                {k === "no_reading" ? (
+                  <>
+                    <Field label="After no reading for (h)" name="no_reading.afterH" type="number" step="0.5" min="0.25" defaultValue={rules.no_reading.afterH} />
+                    <fieldset className="space-y-1">
+                      <legend className="text-sm font-bold">Only while parked in these modes (none ticked: any mode)</legend>
+                      {modes.map((m) => (
+                        <label key={m.id} className="flex min-h-11 items-center gap-3">
+                          <input type="checkbox" name="no_reading.parkedModeIds" value={m.id} defaultChecked={rules.no_reading.parkedModeIds.includes(m.id)} className="size-5" />
+                          {m.name}
+                        </label>
+                      ))}
+                    </fieldset>
+                  </>
+                ) : null}
               </fieldset>
             ))}
             <Button type="submit" disabled={busy}>Save rules</Button>

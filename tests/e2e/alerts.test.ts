@@ -21,10 +21,11 @@ const pushUrl = () => process.env.E2E_PUSH_URL ?? "http://127.0.0.1:4310";
 describe("Warn me", () => {
   test("a guest subscribes, a device's readings take the runway under 3 h, the push arrives and the alert log shows it", async () => {
     const { db } = juniper;
-    // A rig of this test's own (so other tests' Juniper stays as seeded), Ada owner, Noor guest.
-    const [ada] = await db.select().from(users).where(eq(users.email, "ada@juniper.example"));
-    const [noor] = await db.select().from(users).where(eq(users.email, "noor@juniper.example"));
-    const name = `Juniper alerts ${Date.now()}`;
+    // A rig and people of this test's own (the demo people's rigs stay as seeded): an owner and a guest.
+    const tag = Date.now();
+    const [ada] = await db.insert(users).values({ email: `ada-alerts-${tag}@juniper.example`, name: "Ada" }).returning();
+    const [noor] = await db.insert(users).values({ email: `noor-alerts-${tag}@juniper.example`, name: "Noor" }).returning();
+    const name = `Juniper alerts ${tag}`;
     const { rig } = await createRig(db, { name, ownerId: ada!.id, document: juniperModel });
     await db.insert(rigMembers).values({ rigId: rig.id, userId: noor!.id, role: "guest" });
 
@@ -43,7 +44,7 @@ describe("Warn me", () => {
         return (made ? fakeSub : null) as unknown as PushSubscription | null;
       };
     }, sub);
-    await signIn(noorCtx, "noor@juniper.example");
+    await signIn(noorCtx, noor!.email);
     const noor_ = await noorCtx.newPage();
     await noor_.goto(`${baseUrl()}/rigs/${rig.id}/alerts`);
     await noor_.getByRole("heading", { name: `Alerts for ${name}` }).waitFor();
@@ -58,7 +59,7 @@ describe("Warn me", () => {
 
     // Ada creates a device token on the same page (shown once).
     const adaCtx = await phoneContext(juniper.browser);
-    await signIn(adaCtx, "ada@juniper.example");
+    await signIn(adaCtx, ada!.email);
     const ada_ = await adaCtx.newPage();
     await ada_.goto(`${baseUrl()}/rigs/${rig.id}/alerts`);
     await ada_.getByLabel("Device name").fill("Shunt reader");

@@ -8,11 +8,12 @@ import { evaluateRig, evaluateTimeBased } from "~/alerts/evaluate.server";
 import { alertDeliveries, alertEpisodes, pushSubscriptions } from "~/db/schema";
 import type { Mail } from "~/mail/mailer.server";
 import { sendPush } from "~/push/send.server";
-import { listAlertLog, savePreferences } from "~/repos/alerts.server";
+import { getRigRules, listAlertLog, savePreferences, saveRigRules, stopAlerts } from "~/repos/alerts.server";
 import { createDeviceToken } from "~/repos/devices.server";
 import * as pushRoute from "~/routes/api.rigs.$rigId.push";
 import * as ingestRoute from "~/routes/api.v1.rigs.$rigId.readings";
 import * as unsubscribeRoute from "~/routes/alerts.unsubscribe.$token";
+import * as alertsPage from "~/routes/rig.alerts";
 import { startPushFake } from "../../scripts/fakes";
 import { callRoute } from "./auth";
 import { openTestDb } from "./db";
@@ -190,5 +191,49 @@ describe("push alerts", () => {
     const episodes = await db.select().from(alertEpisodes).where(eq(alertEpisodes.rigId, j.rig.id));
     expect(later.rigs).toBeGreaterThan(0);
     expect(episodes.map((e) => e.rule).sort()).toEqual(["falls_short", "runway_low"]);
+  });
+
+  test("someone who stops alerts before the push goes out is not sent it; an owner turning a rule off ends its episode", async () => {
+    const j = await makeJuniper(db);
+    const sub = await subscribe(j.rig.id, j.guestCookie, `t-${crypto.randomUUID()}`);
+    const device = await createDeviceToken(db, { rigId: j.rig.id, name: "Shunt reader", createdBy: j.owner.id });
+    await post(j.rig.id, device.token, { takenAt: at(NIGHT_MS - 60_000), socPct: 20 });
+    const r = await evaluateRig(db, j.rig.id, NIGHT_MS, opts);
+    expect(r.deliveryIds.length).toBeGreaterThan(0);
+    await stopAlerts(db, j.rig.id, j.guest.id);
+    await deliverAll(r.deliveryIds);
+    const id = new URL((await db.select().from(pushSubscriptions).where(eq(pushSubscriptions.id, sub.subscriptionId)))[0]!.endpoint).pathname.split("/").pop()!;
+    expect(await received(fake.url, id)).toEqual([]);
+    const rules = await getRigRules(db, j.rig.id);
+    await saveRigRules(db, j.rig.id, { ...rules, runway_low: { ...rules.runway_low, enabled: false } }, j.owner.id);
+    const open = await db.select().from(alertEpisodes).where(and(eq(alertEpisodes.rigId, j.rig.id), eq(alertEpisodes.rule, "runway_low")));
+    expect(open.length).toBe(1);
+    expect(open[0]!.clearedAt).not.toBeNull();
+  });
+
+  test("owners edit the rig's rules on the Alerts page (with parked modes); guests may only set their own choices", async () => {
+    const j = await makeJuniper(db);
+    const form = { intent: "rules", "runway_low.enabled": "on", "runway_low.belowH": "4.5", "soc_low.floorPct": "", "voltage_low.belowV": "12.2", "voltage_low.enabled": "on", "no_reading.enabled": "on", "no_reading.afterH": "8", "no_reading.parkedModeIds": "storage" };
+    const owner = await callRoute(alertsPage.action, { path: `/rigs/${j.rig.id}/alerts`, cookie: j.ownerCookie, params: { rigId: j.rig.id }, form });
+    expect(owner.status).toBe(200);
+    const rules = await getRigRules(db, j.rig.id);
+    expect(rules.runway_low).toEqual({ enabled: true, belowH: 4.5 });
+    expect(rules.soc_low).toEqual({ enabled: false, floorPct: null });
+    expect(rules.voltage_low).toEqual({ enabled: true, belowV: 12.2 });
+    expect(rules.no_reading).toEqual({ enabled: true, afterH: 8, parkedModeIds: ["storage"] });
+    const bad = await callRoute(alertsPage.action, { path: `/rigs/${j.rig.id}/alerts`, cookie: j.ownerCookie, params: { rigId: j.rig.id }, form: { ...form, "runway_low.belowH": "500" } });
+    expect(bad.status).toBe(400);
+    expect((await callRoute(alertsPage.action, { path: `/rigs/${j.rig.id}/alerts`, cookie: j.guestCookie, params: { rigId: j.rig.id }, form })).status).toBe(403);
+    const mine = await callRoute(alertsPage.action, {
+      path: `/rigs/${j.rig.id}/alerts`,
+      cookie: j.guestCookie,
+      params: { rigId: j.rig.id },
+      form: { intent: "preferences", rule: "runway_low", quietStart: "22:00", quietEnd: "06:30", timeZone: "America/Denver", email: "on" },
+    });
+    expect(mine.status).toBe(200);
+    const page = await callRoute(alertsPage.loader, { path: `/rigs/${j.rig.id}/alerts`, cookie: j.guestCookie, params: { rigId: j.rig.id } });
+    const prefs = (page.body as { prefs: { rules: string[]; quietStartMin: number; quietEndMin: number; push: boolean; email: boolean } }).prefs;
+    expect(prefs).toMatchObject({ rules: ["runway_low"], quietStartMin: 22 * 60, quietEndMin: 6 * 60 + 30, push: false, email: true });
+    expect((page.body as { devices: unknown[] }).devices).toEqual([]);
   });
 });
