@@ -1,6 +1,7 @@
 import { describe, expect, it } from "vitest";
 import requestFixture from "../../tests/fixtures/projection-request.json";
-import { handleProjectionRequest, parseProjectionRequest, projectionRequestJsonSchema, runProjectionRequest } from "./api";
+import { parseProjectionRequest, projectionRequestJsonSchema, runProjectionRequest } from "./api";
+import { handleProjectionRequest } from "./api-test-helper";
 
 const body = structuredClone(requestFixture) as Record<string, unknown>;
 
@@ -15,7 +16,7 @@ describe("POST /api/v1/projection contract", () => {
     expect(r.projection.banks[0]!.socPct).toHaveLength(72 * 12 + 1);
     expect(r.budget.modeName).toBe("Parked night");
     expect(r.audit.failureCount).toBe(0);
-    expect(r.circuitGraph.loads.find((l) => l.loadId === "hob")!.switchCount).toBe(5);
+    expect(r.circuitGraph.loads.find((l) => l.loadId === "hob")!.switchCount).toBe(4);
     expect(r.autonomy[0]!.daysNoCharge).toBeGreaterThan(0);
     // Plain JSON: survives a round trip unchanged (no NaN, Infinity or typed arrays).
     expect(JSON.parse(JSON.stringify(r))).toEqual(r);
@@ -50,11 +51,12 @@ describe("POST /api/v1/projection contract", () => {
     const res = handleProjectionRequest(bad);
     expect(res.status).toBe(400);
     if (res.status === 400) expect(res.body.issues.map((i) => i.path.join("."))).toEqual(["state.modeId", "state.loadsOn.0"]);
-    const bad2 = structuredClone(body) as { model: { sources: { bankId: string }[] } };
-    bad2.model.sources[0]!.bankId = "nowhere";
+    // The fixture is a version-1 export: it is migrated, then checked.
+    const bad2 = structuredClone(body) as { model: { sources: { supplyBankId?: string }[] } };
+    bad2.model.sources[1]!.supplyBankId = "nowhere";
     const res2 = handleProjectionRequest(bad2);
     expect(res2.status).toBe(400);
-    if (res2.status === 400) expect(res2.body.issues[0]).toEqual({ path: ["model", "sources", 0, "bankId"], message: 'Roof solar charges unknown bank "nowhere"' });
+    if (res2.status === 400) expect(res2.body.issues[0]).toEqual({ path: ["model", "sources", 1, "supplyBankId"], message: 'DC-DC charger draws from unknown bank "nowhere"' });
   });
 
   it("never throws on junk", () => {

@@ -17,6 +17,7 @@ import { how, r, type How } from "./explain";
 import { arrayPowerW, clearSkyComponents, dayOfYear, extraterrestrialIrradianceWm2, interpolateSunCoordinates, sunCoordinates, sunHorizontal, transposeWm2, utcOffsetMinutes, type SunCoordinates } from "./solar";
 import type { CurrentState } from "./state";
 import { inWindow } from "./units";
+import { primaryBank } from "./primary-bank";
 
 export interface ProjectionOptions {
   horizonH?: number;
@@ -84,7 +85,7 @@ export interface Projection {
   timesMs: number[];
   nextSunriseMs: number | null;
   banks: BankProjection[];
-  /** The first house bank's results, for the headline. */
+  /** The primary bank's results (./primary-bank), for the headline. */
   primaryBankId: string;
   budget: Budget;
 }
@@ -172,9 +173,14 @@ export function runProjection(model: RigModel, graph: CircuitGraph, state: Curre
   const E0 = [...E];
   const prof = model.banks.map((b) => profiles.get(b.id)!);
 
+  // Each source's current goes to the banks on its net, by the net's shares (./solution).
+  const sol = budget.solution;
+  const sharesOf = (id: string) => (sol.sources[id]?.bankShares ?? []).map((x) => ({ i: bankIndex.get(x.bankId)!, share: x.share }));
   const solar = model.sources.filter((s): s is SolarSource => s.kind === "solar")
-    .filter((s) => modeSources.get(s.id)?.enabled !== false && bankIndex.has(s.bankId));
-  const chargers = model.sources.filter((s): s is ChargerSource => s.kind !== "solar" && bankIndex.has(s.bankId));
+    .filter((s) => modeSources.get(s.id)?.enabled !== false && sharesOf(s.id).length > 0);
+  const chargers = model.sources.filter((s): s is ChargerSource => s.kind !== "solar" && sharesOf(s.id).length > 0);
+  const chargerShares = chargers.map((c) => sharesOf(c.id));
+  const chargerV = chargers.map((c) => sol.nets[sol.sources[c.id]!.netId!]!.voltageV);
 
   const soc: number[][] = model.banks.map(() => new Array<number>(steps + 1));
   const timesMs = new Array<number>(steps + 1);
@@ -200,7 +206,8 @@ export function runProjection(model: RigModel, graph: CircuitGraph, state: Curre
   const scratch: SunCoordinates = { alphaRad: 0, deltaRad: 0, distanceAu: 0, eqEquinoxDeg: 0 };
   const doyStart = dayOfYear(startMs);
   const e0ByDay: number[] = [];
-  const solarBank = solar.map((src) => bankIndex.get(src.bankId)!);
+  const solarShares = solar.map((src) => sharesOf(src.id));
+  const solarV = solar.map((src) => sol.nets[sol.sources[src.id]!.netId!]!.voltageV);
   const wf = Math.min(1, Math.max(0, weather));
   for (let s = 0; s < steps; s++) {
     const t0 = startMs + s * stepMs;
@@ -225,19 +232,22 @@ export function runProjection(model: RigModel, graph: CircuitGraph, state: Curre
       const comp = clearSkyComponents(sun.zenithDeg, e0);
       for (let j = 0; j < solar.length; j++) {
         const src = solar[j]!;
-        const bi = solarBank[j]!;
         const poa = transposeWm2(comp, sun.zenithDeg, sun.azimuthDeg, src.tiltDeg, src.azimuthDeg) * wf;
-        const w = arrayPowerW(src, poa, ambientC, V[bi]!);
-        srcW[bi] = srcW[bi]! + w;
-        if (w > 0) kindAtStep[bi] = "sun";
+        const w = arrayPowerW(src, poa, ambientC, solarV[j]!);
+        for (const { i: bi, share } of solarShares[j]!) {
+          srcW[bi] = srcW[bi]! + w * share;
+          if (w > 0) kindAtStep[bi] = "sun";
+        }
       }
     }
-    for (const src of chargers) {
+    for (let j = 0; j < chargers.length; j++) {
+      const src = chargers[j]!;
       if (!sourceActive(src, modeSources, hour)) continue;
-      const bi = bankIndex.get(src.bankId)!;
-      const w = src.ratedA * V[bi]!;
-      srcW[bi] = srcW[bi]! + w;
-      kindAtStep[bi] = kindOfWindow(src.kind);
+      const w = src.ratedA * chargerV[j]!;
+      for (const { i: bi, share } of chargerShares[j]!) {
+        srcW[bi] = srcW[bi]! + w * share;
+        kindAtStep[bi] = kindOfWindow(src.kind);
+      }
       if (src.kind === "charger" && src.supplyBankId !== undefined) {
         const si = bankIndex.get(src.supplyBankId);
         if (si !== undefined) supplyDrawW[si] = supplyDrawW[si]! + w / ((src.efficiencyPct ?? 90) / 100);
@@ -344,7 +354,7 @@ export function runProjection(model: RigModel, graph: CircuitGraph, state: Curre
       ),
     };
   });
-  const primary = model.banks.find((b) => b.role === "house") ?? model.banks[0]!;
+  const primary = primaryBank(model);
   return {
     startMs,
     stepMin,

@@ -12,6 +12,9 @@ export const bankStateSchema = z.object({
   socPct: z.number().finite().min(0).max(100).optional(),
   /** Resting (open-circuit) bank voltage, read after the bank has rested. */
   restingV: z.number().finite().positive().max(100).optional(),
+  /** When the SoC or voltage was read; the projection carries it forward to `dateTime`
+   * (./carry-forward). Absent: it is taken as read at `dateTime`. */
+  takenAt: z.iso.datetime({ offset: true }).optional(),
   /** Battery temperature, for the lead-acid capacity correction. */
   temperatureC: z.number().finite().min(-40).max(70).optional(),
 });

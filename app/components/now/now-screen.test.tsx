@@ -93,7 +93,9 @@ describe("Now screen text from the engine", () => {
   test("a load whose switch path is open says it is not running, and the runway counts it off", () => {
     const state = stateWith(62, { positions: { "sw-panel": "off" } });
     const now = computeNow({ model: juniperModel, state, atMs: at });
-    expect(now.engineState.loadsOn).not.toContain("fridge");
+    // The fridge stays wanted on, but with the fuse panel's enable set off it has no power.
+    expect(now.projection.budget.solution.loads.fridge!.powered).toBe(false);
+    expect(now.projection.budget.loads.find((l) => l.loadId === "fridge")!.runWhPerDay).toBe(0);
     expect(text(render(state))).toContain("Not running: Fuse panel enable is off");
   });
 });
