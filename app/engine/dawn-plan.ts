@@ -21,15 +21,18 @@ import { bankCapacityWh } from "./battery";
 import { computeBudget, planLoads } from "./draw";
 import { how, r, type How } from "./explain";
 import { localHourFn, runProjection, type BankProjection } from "./projection";
+import { solveState } from "./solution";
 import type { CurrentState } from "./state";
 import { inWindow } from "./units";
 
 export const EXACT_LIMIT = 6;
 
 export interface DawnAction {
+  /** A load id, or an inverter id for kind "inverter-off". */
   loadId: string;
   name: string;
-  kind: "off" | "halve";
+  /** off / halve a load; inverter-off: the inverter and the AC loads behind it off. */
+  kind: "off" | "halve" | "inverter-off";
   /** Hours of use per day given up. */
   comfortLostH: number;
   /** Energy saved to the primary bank between now and the next charge, Wh (estimate). */
@@ -53,6 +56,8 @@ export interface DawnPlan {
   ranked: DawnAction[];
   /** Loads to switch off for the one-tap suggestion (the "off" actions). */
   switchOff: string[];
+  /** Inverters to switch off (their AC loads go off with them). */
+  invertersOff: string[];
   projectionsRun: number;
   how: How;
 }
@@ -69,18 +74,24 @@ function verdictOf(b: BankProjection, margin: number): Verdict {
 export function planForDawn(model: RigModel, graph: CircuitGraph, state: CurrentState, opts: { marginSocPct?: number; stepMin?: number; horizonH?: number } = {}): DawnPlan {
   const margin = opts.marginSocPct ?? 0;
   const stepMin = opts.stepMin ?? 15;
-  const horizonH = opts.horizonH ?? 72;
+  let horizonH = opts.horizonH ?? 72;
   const planned = planLoads(model, { modeId: state.modeId, ...(state.loadsOn ? { loadsOn: state.loadsOn } : {}) });
   const loadsOn = planned.filter((p) => p.on).map((p) => p.load.id);
   let projectionsRun = 0;
 
-  const evaluate = (off: Set<string>, halve: Set<string>): { v: Verdict; b: BankProjection } => {
+  const invOn = solveState(model, graph, { modeId: state.modeId, loadsOn, ...(state.inverterIdsOn ? { inverterIdsOn: state.inverterIdsOn } : {}) }).inverterIdsOn;
+  const acBehind = (invId: string) => loadsOn.filter((id) => (graph.paths.loads[id] ?? []).some((p) => p.inverterIds.includes(invId)));
+  const evaluate = (offIn: Set<string>, halve: Set<string>): { v: Verdict; b: BankProjection } => {
     projectionsRun++;
+    const off = new Set(offIn);
+    const invOff = new Set([...offIn].filter((id) => invOn.includes(id)));
+    for (const inv of invOff) for (const id of acBehind(inv)) off.add(id);
     const m = halve.size === 0 ? model : {
       ...model,
       modes: model.modes.map((mo) => (mo.id !== state.modeId ? mo : { ...mo, loads: mo.loads.map((l) => (halve.has(l.loadId) ? { ...l, hoursPerDay: l.hoursPerDay / 2 } : l)) })),
     };
-    const p = runProjection(m, graph, { ...state, loadsOn: loadsOn.filter((id) => !off.has(id)) }, { stepMin, horizonH });
+    const inverters = invOff.size ? { inverterIdsOn: invOn.filter((id) => !invOff.has(id)) } : {};
+    const p = runProjection(m, graph, { ...state, ...inverters, loadsOn: loadsOn.filter((id) => !off.has(id)) }, { stepMin, horizonH });
     const b = p.banks.find((x) => x.bankId === p.primaryBankId)!;
     return { v: verdictOf(b, margin), b };
   };
@@ -88,16 +99,18 @@ export function planForDawn(model: RigModel, graph: CircuitGraph, state: Current
   const base = evaluate(new Set(), new Set());
   const before = { reaches: base.v.reaches, marginSocPct: base.v.marginSocPct, runwayH: base.v.runwayH };
   const empty = (needed: boolean, method: DawnPlan["method"], ranked: DawnAction[]): DawnPlan => ({
-    needed, found: !needed, method, marginSocPct: margin, before, after: needed ? null : before, actions: [], comfortLostH: 0, ranked, switchOff: [], projectionsRun,
+    needed, found: !needed, method, marginSocPct: margin, before, after: needed ? null : before, actions: [], comfortLostH: 0, ranked, switchOff: [], invertersOff: [], projectionsRun,
     how: how("no action: the verdict passes with the margin", { marginSocPct: margin }),
   });
   if (base.v.pass) return empty(false, "exact", []);
+  // Later checks only need to reach the next charge (and a little past it).
+  if (base.b.tillDawn.nextWindowMs !== null) horizonH = Math.min(horizonH, Math.ceil((base.b.tillDawn.nextWindowMs - Date.parse(state.dateTime)) / 3_600_000) + 2);
 
   // Saved energy per load before the window, from the budget's shares and the load's hours.
   const budget = computeBudget(model, graph, { modeId: state.modeId, loadsOn });
   const primaryId = base.b.bankId;
   const startMs = Date.parse(state.dateTime);
-  const endMs = base.b.tillDawn.nextWindowMs ?? startMs + horizonH * 3_600_000;
+  const endMs = base.b.tillDawn.nextWindowMs ?? startMs + (opts.horizonH ?? 72) * 3_600_000;
   const spanH = Math.max(stepMin / 60, (endMs - startMs) / 3_600_000);
   const hourOf = localHourFn(startMs, endMs + 1, model.timeZone);
   const avgDrawW = Math.max(1e-6, budget.banks.find((b) => b.bankId === primaryId)!.averageW);
@@ -124,6 +137,20 @@ export function planForDawn(model: RigModel, graph: CircuitGraph, state: Current
       ranked.push({ loadId: p.load.id, name: p.load.name, kind, comfortLostH: comfort, savedWh: s, runwayGainPerComfortH: s / avgDrawW / Math.max(comfort, 1e-6) });
     }
   }
+  // Inverters whose AC loads are all non-essential: off saves their idle draw too.
+  for (const invId of invOn) {
+    const inv = model.inverters.find((x) => x.id === invId);
+    const f = budget.solution.inverters[invId];
+    if (!inv || !f) continue;
+    const behind = acBehind(invId);
+    if (behind.some((id) => model.loads.find((l) => l.id === id)?.essential)) continue;
+    const share = f.bankShares.find((x) => x.bankId === primaryId)?.share ?? 0;
+    if (share === 0) continue;
+    const acSaved = ranked.filter((a) => a.kind === "off" && behind.includes(a.loadId)).reduce((sum, a) => sum + a.savedWh, 0);
+    const comfort = planned.filter((p) => behind.includes(p.load.id)).reduce((sum, p) => sum + p.hoursPerDay, 0);
+    const savedWh = (inv.idleW - (inv.offW ?? 0)) * spanH * share + acSaved;
+    ranked.push({ loadId: invId, name: `${inv.name} (and its AC loads)`, kind: "inverter-off", comfortLostH: comfort, savedWh, runwayGainPerComfortH: savedWh / avgDrawW / Math.max(comfort, 0.1) });
+  }
   ranked.sort((a, b) => b.runwayGainPerComfortH - a.runwayGainPerComfortH || b.savedWh - a.savedWh);
   const loadIds = [...new Set(ranked.map((a) => a.loadId))];
 
@@ -133,7 +160,8 @@ export function planForDawn(model: RigModel, graph: CircuitGraph, state: Current
       needed: true, found, method, marginSocPct: margin, before,
       after: v ? { reaches: v.reaches, marginSocPct: v.marginSocPct, runwayH: v.runwayH } : null,
       actions: found ? chosen : [], comfortLostH: found ? chosen.reduce((s, a) => s + a.comfortLostH, 0) : 0,
-      ranked, switchOff: found ? chosen.filter((a) => a.kind === "off").map((a) => a.loadId) : [], projectionsRun,
+      ranked, switchOff: found ? chosen.filter((a) => a.kind === "off").map((a) => a.loadId) : [],
+      invertersOff: found ? chosen.filter((a) => a.kind === "inverter-off").map((a) => a.loadId) : [], projectionsRun,
       how: how(
         method === "exact"
           ? "every combination of keep / halve / off over the non-essential loads on, in order of hours of use given up, checked with the projection; the first that reaches the next charge with the margin"
@@ -146,7 +174,7 @@ export function planForDawn(model: RigModel, graph: CircuitGraph, state: Current
 
   if (loadIds.length <= EXACT_LIMIT) {
     // 0 keep, 1 halve, 2 off — every combination, by comfort lost.
-    const opts = loadIds.map((id) => [null, ranked.find((a) => a.loadId === id && a.kind === "halve") ?? null, ranked.find((a) => a.loadId === id && a.kind === "off")!] as const);
+    const opts = loadIds.map((id) => [null, ranked.find((a) => a.loadId === id && a.kind === "halve") ?? null, ranked.find((a) => a.loadId === id && a.kind !== "halve")!] as const);
     const combos: { acts: DawnAction[]; comfort: number; saved: number }[] = [];
     const total = 3 ** loadIds.length;
     for (let code = 1; code < total; code++) {
@@ -166,7 +194,7 @@ export function planForDawn(model: RigModel, graph: CircuitGraph, state: Current
     }
     combos.sort((a, b) => a.comfort - b.comfort || b.saved - a.saved);
     for (const cmb of combos) {
-      const off = new Set(cmb.acts.filter((a) => a.kind === "off").map((a) => a.loadId));
+      const off = new Set(cmb.acts.filter((a) => a.kind !== "halve").map((a) => a.loadId));
       const half = new Set(cmb.acts.filter((a) => a.kind === "halve").map((a) => a.loadId));
       const { v } = evaluate(off, half);
       if (v.pass) return finish(cmb.acts, v, "exact");
@@ -191,7 +219,7 @@ export function planForDawn(model: RigModel, graph: CircuitGraph, state: Current
     chosen.push(a);
     savedSum += a.savedWh;
     if (savedSum < shortfallWh && queue.length) continue;
-    const off = new Set(chosen.filter((x) => x.kind === "off").map((x) => x.loadId));
+    const off = new Set(chosen.filter((x) => x.kind !== "halve").map((x) => x.loadId));
     const half = new Set(chosen.filter((x) => x.kind === "halve").map((x) => x.loadId));
     last = evaluate(off, half).v;
     if (last.pass) return finish(chosen, last, "greedy");
@@ -199,6 +227,6 @@ export function planForDawn(model: RigModel, graph: CircuitGraph, state: Current
   // Everything halved or off was not enough: try all off.
   const allOff = new Set(loadIds);
   last = evaluate(allOff, new Set()).v;
-  if (last.pass) return finish(loadIds.map((id) => ranked.find((a) => a.loadId === id && a.kind === "off")!), last, "greedy");
+  if (last.pass) return finish(loadIds.map((id) => ranked.find((a) => a.loadId === id && a.kind !== "halve")!), last, "greedy");
   return finish([], null, "greedy");
 }
