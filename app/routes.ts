@@ -36,6 +36,7 @@ export default [
   route("api/rigs/:rigId/model", "routes/api.rigs.model.ts"),
   route("api/rigs/:rigId/state", "routes/api.rigs.state.ts"),
   route("api/rigs/:rigId/modes", "routes/api.rigs.modes.ts"),
+  route("api/rigs/:rigId/compare", "routes/api.rigs.compare.ts"),
 
   route("*", "routes/not-found.tsx"),
 ] satisfies RouteConfig;

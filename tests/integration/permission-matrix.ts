@@ -94,5 +94,6 @@ export const permissionMatrix: Record<string, RouteRow> = {
   "routes/api.rigs.model.ts": { GET: { expect: members() } },
   "routes/api.rigs.state.ts": { GET: { expect: members() }, POST: { expect: crewUp(), json: () => ({}) } },
   "routes/api.rigs.modes.ts": { GET: { expect: "notAllowed" }, POST: { expect: ownerOnly(), json: () => ({}) } },
+  "routes/api.rigs.compare.ts": { GET: { expect: "notAllowed" }, POST: { expect: members(), json: () => ({}) } },
   "routes/not-found.tsx": { GET: { expect: "notFound" } },
 };
