@@ -3,16 +3,19 @@
 // were produced by the version-1 engine (commit 17b3d80) from the version-1 documents kept in
 // tests/fixtures/v1/ and the version-1 test rigs (state: 2026-10-15 19:30 −06:00, every bank at
 // 70 %, weather 0.8). None of these rigs parallels banks on one bus, so nothing may move.
-import { readFileSync } from "node:fs";
+import figures from "../../tests/fixtures/v1/figures.json";
+import juniperV1 from "../../tests/fixtures/v1/juniper.json";
+import largeV1 from "../../tests/fixtures/v1/large-rig.json";
 import { describe, expect, it } from "vitest";
 import { buildCircuitGraph } from "./circuit-graph";
 import { computeBudget } from "./draw";
 import { migrateModel, validateModel, type RigModel } from "./model";
 import { runProjection } from "./projection";
 
-const read = (f: string) => JSON.parse(readFileSync(new URL(`../../tests/fixtures/v1/${f}`, import.meta.url), "utf8"));
+const files: Record<string, unknown> = { "juniper.json": juniperV1, "large-rig.json": largeV1, "figures.json": figures };
+const read = (f: string) => structuredClone(files[f]) as Record<string, unknown>;
 type Figures = Record<string, { totalWhPerDay: number; standbyWhPerDay: number; banks: Record<string, number>; runwayH: Record<string, number | null>; endSoc: Record<string, number> }>;
-const before = read("figures.json") as Record<string, Figures>;
+const before = read("figures.json") as unknown as Record<string, Figures>;
 
 // The version-1 test rigs as they were stored (one bank, a source with a bankId shortcut).
 function oneLoadV1(loadW: number, opts: { solarWp?: number; shoreA?: number; flooded?: boolean }) {
