@@ -18,6 +18,7 @@ import { arrayPowerW, clearSkyComponents, dayOfYear, extraterrestrialIrradianceW
 import type { CurrentState } from "./state";
 import { inWindow } from "./units";
 import { primaryBank } from "./primary-bank";
+import { carrySocForward, type CarriedSoc } from "./carry-forward";
 
 export interface ProjectionOptions {
   horizonH?: number;
@@ -28,8 +29,10 @@ export interface BankProjection {
   bankId: string;
   name: string;
   startSocPct: number;
-  /** Where the start SoC came from. */
-  startSocFrom: "soc" | "resting-voltage" | "assumed-full";
+  /** Where the start SoC came from ("carried": a reading taken earlier, projected to now). */
+  startSocFrom: "soc" | "resting-voltage" | "assumed-full" | "carried";
+  /** For a carried reading: when it was taken and its value then. */
+  carriedFrom?: { takenAt: string; socPct: number; segments: number };
   startSocConfidence: "high" | "medium" | "low";
   stopSocPct: number;
   /** SoC at each time in `timesMs` (first point = now). */
@@ -134,7 +137,11 @@ const kindOfWindow = (k: ChargerSource["kind"]): TillDawn["nextWindowKind"] =>
 /**
  * Run the projection. The model must be valid and `graph` built from it.
  */
-export function runProjection(model: RigModel, graph: CircuitGraph, state: CurrentState, options: ProjectionOptions = {}): Projection {
+export function runProjection(model: RigModel, graph: CircuitGraph, stateIn: CurrentState, options: ProjectionOptions = {}): Projection {
+  // An SoC read earlier is first carried forward to dateTime through the states in between.
+  const { state, carried } = stateIn.banks.some((b) => b.takenAt !== undefined)
+    ? carrySocForward(model, graph, stateIn, runProjection)
+    : { state: stateIn, carried: [] as CarriedSoc[] };
   const horizonH = options.horizonH ?? 72;
   const stepMin = options.stepMin ?? 5;
   const steps = Math.max(1, Math.round((horizonH * 60) / stepMin));
@@ -322,7 +329,8 @@ export function runProjection(model: RigModel, graph: CircuitGraph, state: Curre
       bankId: b.id,
       name: b.name,
       startSocPct: start[i]!.socPct,
-      startSocFrom: start[i]!.from,
+      startSocFrom: carried.some((c) => c.bankId === b.id) ? "carried" : start[i]!.from,
+      ...(() => { const c = carried.find((x) => x.bankId === b.id); return c ? { carriedFrom: { takenAt: c.takenAt, socPct: c.fromSocPct, segments: c.segments } } : {}; })(),
       startSocConfidence: start[i]!.confidence,
       stopSocPct: stopSoc[i]!,
       socPct: curve,

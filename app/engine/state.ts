@@ -30,6 +30,14 @@ export const currentStateSchema = z.object({
   inverterIdsOn: z.array(id).max(10).optional(),
   /** Positions of switches that choose between feeds (e.g. a changeover). */
   switchPositions: z.record(z.string(), z.string()).optional(),
+  /** What changed between an old SoC reading and now (switch history), oldest first; each
+   * entry holds from `at` on. Used to carry an old reading forward (./carry-forward). */
+  history: z.array(z.object({
+    at: z.iso.datetime({ offset: true }),
+    modeId: id.optional(),
+    loadsOn: z.array(id).max(500).optional(),
+    switchPositions: z.record(z.string(), z.string()).optional(),
+  })).max(200).optional(),
   /** Where the rig is now; absent = its home location. */
   location: z
     .object({
