@@ -1,0 +1,1 @@
+ALTER TABLE "rig_state" ADD COLUMN "bank_socs" jsonb DEFAULT '{}'::jsonb NOT NULL;
