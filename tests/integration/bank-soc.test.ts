@@ -69,7 +69,6 @@ async function run(fn: (args: never) => Promise<unknown> | unknown, req: Request
 }
 
 const postState = (rigId: string, call: Call) => run(stateRoute.action, request(`/api/rigs/${rigId}/state`, "POST", call), rigId);
-const at = "2026-10-15T19:30:00-06:00";
 
 describe("SoC for every bank", () => {
   test("crew enter the starter battery's SoC; the house bank's stays; an unknown bank is a 400", async () => {
