@@ -55,10 +55,25 @@ export function startPositions(model: RigModel, graph: CircuitGraph, start: Star
   return at;
 }
 
-/** Operations to power one load; null when no path can power it. */
+const allOffCache = new WeakMap<CircuitGraph, Map<string, LoadOperations | null>>();
+
+/** Operations to power one load; null when no path can power it. ("all-off" without `hold` is memoised per graph.) */
 export function operationsFor(
   model: RigModel, graph: CircuitGraph, loadId: string, start: StartState,
   opts: { plan?: PlanInput; hold?: Record<string, string> } = {},
+): LoadOperations | null {
+  if (start === "all-off" && !opts.hold) {
+    let m = allOffCache.get(graph);
+    if (!m) allOffCache.set(graph, (m = new Map()));
+    if (!m.has(loadId)) m.set(loadId, computeOperations(model, graph, loadId, start, opts));
+    return m.get(loadId)!;
+  }
+  return computeOperations(model, graph, loadId, start, opts);
+}
+
+function computeOperations(
+  model: RigModel, graph: CircuitGraph, loadId: string, start: StartState,
+  opts: { plan?: PlanInput; hold?: Record<string, string> },
 ): LoadOperations | null {
   const load = model.loads.find((l) => l.id === loadId);
   if (!load) return null;

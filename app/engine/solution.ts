@@ -123,8 +123,16 @@ export function circuitConducts(c: Circuit, at: Record<string, string>): boolean
   return c.switches.every((s) => at[s.switchId] === s.position);
 }
 
+const circuitMaps = new WeakMap<RigModel, Map<string, Circuit>>();
+function circuitMap(model: RigModel): Map<string, Circuit> {
+  let m = circuitMaps.get(model);
+  if (!m) circuitMaps.set(model, (m = new Map(model.circuits.map((c) => [c.id, c]))));
+  return m;
+}
+
 /** Which banks the path's supply port needs in which state, plus the circuit settings. */
 export function pathSettings(model: RigModel, p: FeedPath, withBms = true): { switchId: string; position: string }[] | null {
+  const circuits = circuitMap(model);
   const out: { switchId: string; position: string }[] = [];
   if (withBms && p.supply.kind === "bank") {
     const supply = p.supply;
@@ -134,7 +142,7 @@ export function pathSettings(model: RigModel, p: FeedPath, withBms = true): { sw
     out.push(...req);
   }
   for (const cid of p.circuitIds) {
-    const c = model.circuits.find((x) => x.id === cid);
+    const c = circuits.get(cid);
     if (c) out.push(...c.switches);
   }
   return out;
