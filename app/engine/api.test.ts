@@ -73,3 +73,21 @@ describe("POST /api/v1/projection contract", () => {
     expect(Object.keys(s.properties.model!.properties!)).toContain("circuits");
   });
 });
+
+describe("POST /api/v1/projection with switch positions (the README's shared-bus request)", () => {
+  it("answers the solution, the findings and the operations for the positions given", async () => {
+    const req = (await import("../../tests/fixtures/projection-request-shared-bus.json")).default;
+    const res = handleProjectionRequest(structuredClone(req));
+    expect(res.status).toBe(200);
+    if (res.status !== 200) return;
+    expect(res.body.schemaVersion).toBe(2);
+    expect(res.body.solution.positions.find((p) => p.switchId === "sw-crit")).toMatchObject({ position: "charge", origin: "set" });
+    expect(res.body.solution.bms.find((b) => b.bankId === "bat-a")!.stateId).toBe("asleep");
+    expect(res.body.audit.findings.map((f) => f.kind)).toContain("outside-protection");
+    expect(res.body.audit.findings.some((f) => f.kind === "backdoor-charging")).toBe(false);
+    expect(res.body.operations.find((o) => o.loadId === "lights")!.allOff!.operationCount).toBe(2); // changeover off → charge, lights switch
+    const onLoad = handleProjectionRequest({ ...structuredClone(req), state: { ...req.state, switchPositions: { "sw-crit": "load" } } });
+    if (onLoad.status === 200) expect(onLoad.body.audit.findings[0]!.kind).toBe("backdoor-charging");
+    else throw new Error("400");
+  });
+});

@@ -202,7 +202,21 @@ export function planForDawn(model: RigModel, graph: CircuitGraph, state: Current
     return finish([], null, "exact");
   }
 
-  // Greedy for large rigs: estimate the shortfall from the base projection.
+  // Greedy for large rigs: estimate the shortfall from the base projection. Once a set passes,
+  // drop its lowest-ranked actions while it still passes (a few more projections, binary steps).
+  let lastPassing: Verdict | null = null;
+  const prune = (acts: DawnAction[], v: Verdict): DawnAction[] => {
+    lastPassing = v;
+    let keep = acts;
+    let step = Math.floor(acts.length / 2);
+    while (step >= 1 && projectionsRun < 12) {
+      const trial = keep.slice(0, keep.length - step);
+      if (trial.length === 0) { step = Math.floor(step / 2); continue; }
+      const r = evaluate(new Set(trial.filter((x) => x.kind !== "halve").map((x) => x.loadId)), new Set(trial.filter((x) => x.kind === "halve").map((x) => x.loadId))).v;
+      if (r.pass) { keep = trial; lastPassing = r; } else step = Math.floor(step / 2);
+    }
+    return keep;
+  };
   const capWh = bankCapacityWh(model.banks.find((b) => b.id === primaryId)!);
   const runwayH = base.b.runwayH ?? spanH;
   const shortfallWh = Math.max(0, spanH - runwayH) * avgDrawW + (margin / 100) * capWh;
@@ -222,7 +236,7 @@ export function planForDawn(model: RigModel, graph: CircuitGraph, state: Current
     const off = new Set(chosen.filter((x) => x.kind !== "halve").map((x) => x.loadId));
     const half = new Set(chosen.filter((x) => x.kind === "halve").map((x) => x.loadId));
     last = evaluate(off, half).v;
-    if (last.pass) return finish(chosen, last, "greedy");
+    if (last.pass) return finish(prune(chosen, last), lastPassing ?? last, "greedy");
   }
   // Everything halved or off was not enough: try all off.
   const allOff = new Set(loadIds);

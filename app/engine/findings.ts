@@ -49,6 +49,8 @@ export const FINDING_CAUTION =
 const SEVERITY_RANK: Record<Severity, number> = { danger: 0, warning: 1, notice: 2 };
 const KIND_RANK: Record<FindingKind, number> = { "backdoor-charging": 0, "mixed-chemistry": 1, "outside-protection": 2, "end-to-end-drop": 3, "changeover-no-position": 4 };
 
+const listWords = (xs: string[]) => (xs.length <= 1 ? xs.join("") : `${xs.slice(0, -1).join(", ")} and ${xs[xs.length - 1]}`);
+
 /** Current a source can deliver, A at the net voltage. */
 function sourceA(model: RigModel, id: string, v: number): number {
   const s = model.sources.find((x) => x.id === id);
@@ -194,7 +196,7 @@ export function auditFindings(model: RigModel, graph: CircuitGraph, plan: PlanIn
       id: `mixed-chemistry:${net.banks.map((b) => b.bankId).sort().join("+")}`,
       kind: "mixed-chemistry",
       severity: liAndLead ? "warning" : "notice",
-      title: `${net.banks.map((b) => banks.get(b.bankId)!.name).join(" and ")} (${chems.join(", ")}) are paralleled with no charger or isolator between them`,
+      title: `${listWords(net.banks.map((b) => banks.get(b.bankId)!.name))} (${chems.join(", ")}) are paralleled with no charger or isolator between them`,
       why: liAndLead
         ? "Lithium and lead-acid batteries need different charge voltages and rest at different voltages: paralleled, the lithium bank drains into the lead-acid one, the lead-acid one is never fully charged and the split of the load is unpredictable."
         : "Lead-acid types differ in charge and float voltage: paralleled, one is over- or under-charged.",
