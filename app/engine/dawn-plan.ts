@@ -226,21 +226,26 @@ export function planForDawn(model: RigModel, graph: CircuitGraph, state: Current
   let last: Verdict | null = null;
   // Prefer "off" over "halve" for one load only if it ranks higher; never both.
   const queue = [...ranked];
+  const check = (acts: DawnAction[]) => evaluate(new Set(acts.filter((x) => x.kind !== "halve").map((x) => x.loadId)), new Set(acts.filter((x) => x.kind === "halve").map((x) => x.loadId))).v;
+  let checkedAt = -1;
   while (queue.length) {
     const a = queue.shift()!;
     if (taken.has(a.loadId)) continue;
     taken.add(a.loadId);
     chosen.push(a);
     savedSum += a.savedWh;
-    if (savedSum < shortfallWh && queue.length) continue;
-    const off = new Set(chosen.filter((x) => x.kind !== "halve").map((x) => x.loadId));
-    const half = new Set(chosen.filter((x) => x.kind === "halve").map((x) => x.loadId));
-    last = evaluate(off, half).v;
+    if (savedSum < shortfallWh) continue;
+    last = check(chosen);
+    checkedAt = chosen.length;
+    if (last.pass) return finish(prune(chosen, last), lastPassing ?? last, "greedy");
+  }
+  if (checkedAt !== chosen.length && chosen.length) {
+    last = check(chosen);
     if (last.pass) return finish(prune(chosen, last), lastPassing ?? last, "greedy");
   }
   // Everything halved or off was not enough: try all off.
-  const allOff = new Set(loadIds);
-  last = evaluate(allOff, new Set()).v;
-  if (last.pass) return finish(loadIds.map((id) => ranked.find((a) => a.loadId === id && a.kind !== "halve")!), last, "greedy");
+  const allOffActs = loadIds.map((id) => ranked.find((a) => a.loadId === id && a.kind !== "halve")!);
+  last = check(allOffActs);
+  if (last.pass) return finish(prune(allOffActs, last), lastPassing ?? last, "greedy");
   return finish([], null, "greedy");
 }
