@@ -91,3 +91,17 @@ describe("POST /api/v1/projection with switch positions (the README's shared-bus
     else throw new Error("400");
   });
 });
+
+describe("present power in the API answer", () => {
+  it("Juniper at 19:30 in Parked night draws 145.0 W from the house bank (worked by hand)", async () => {
+    const { juniperModel } = await import("../../tests/fixtures/juniper");
+    const res = handleProjectionRequest({ model: juniperModel, state: { dateTime: "2026-10-15T19:30:00-06:00", modeId: "parked-night", banks: [{ bankId: "house", socPct: 70 }] }, options: { includeCurves: false } });
+    if (res.status !== 200) throw new Error("400");
+    const house = res.body.present.find((p) => p.bankId === "house")!;
+    // Running at 19:30: fridge 48 W × 35 % = 16.8, lights 24 (18–23 h), dish 75 (19–20 h);
+    // spread over the day: pump 64 W × 0.3 h / 24 = 0.8, alarm 0.5; standby: guard engaged 4.8,
+    // inverter idle 18, dish 6 W × 19 h / 24 = 4.75, fan 0.3 × 20 / 24 = 0.25, heater 0.2 × 15 / 24 = 0.125.
+    expect(house.drawW).toBeCloseTo(16.8 + 24 + 75 + 0.8 + 0.5 + 4.8 + 18 + 4.75 + 0.25 + 0.125, 6);
+    expect(house.solarW).toBe(0); // after sunset
+  });
+});

@@ -14,6 +14,7 @@ import { runProjection, type BankProjection } from "./projection";
 import { currentStateSchema, type CurrentState } from "./state";
 import { planForDawn, type DawnPlan } from "./dawn-plan";
 import { operationsFor, type LoadOperations } from "./operations";
+import { presentPower, type PresentPower } from "./now";
 import { mainBankId, type BankShare, type BmsStateNow, type ResolvedPosition } from "./solution";
 
 export const projectionOptionsSchema = z.object({
@@ -74,6 +75,8 @@ export interface ProjectionResult {
   };
   /** How to power each load from "all off" and from the present positions. */
   operations: { loadId: string; allOff: LoadOperations | null; now: LoadOperations | null }[];
+  /** Draw and source power of each bank at the state's instant (the Now screen's figures). */
+  present: (PresentPower & { bankId: string })[];
   /** The dawn plan when the verdict falls short (null when it passes). */
   dawnPlan: DawnPlan | null;
   autonomy: Autonomy[];
@@ -188,6 +191,7 @@ export function runProjectionRequest(req: ProjectionRequest): ProjectionResult {
       now: operationsFor(model, graph, l.id, "now", { plan }),
     })),
     dawnPlan,
+    present: model.banks.map((b) => ({ bankId: b.id, ...presentPower(model, graph, state, projection, projection.startMs, b.id) })),
     autonomy: model.banks.map((b) => autonomy(model, graph, projection.budget, b.id, state)),
   };
 }

@@ -82,24 +82,30 @@ export function sourcesAt(model: RigModel, projection: Projection, s: CurrentSta
   return { solarW, otherW };
 }
 
-/** The projection and the present figures of the primary bank for one state at `atMs`. */
-export function nowFigures(model: RigModel, graph: CircuitGraph, s: CurrentState, atMs: number, options: ProjectionOptions = {}): NowFigures {
-  const projection = runProjection(model, graph, s, options);
-  const bank = projection.banks.find((b) => b.bankId === projection.primaryBankId)!;
-  const bankModel = model.banks.find((b) => b.id === bank.bankId)!;
+/** Draw and source power of one bank (default: the primary bank) at an instant, from the projection's own profiles and source routing. */
+export function presentPower(model: RigModel, graph: CircuitGraph, s: CurrentState, projection: Projection, atMs: number, bankId = projection.primaryBankId): PresentPower {
+  const bankModel = model.banks.find((b) => b.id === bankId)!;
   const profile = profilesFor(model, graph, projection, s).get(bankModel.id);
   const hour = localHourFn(atMs, atMs + 60_000, model.timeZone)(atMs);
   const drawW = drawAt(profile, hour);
   const { solarW, otherW } = sourcesAt(model, projection, s, bankModel, atMs, hour);
   const v = bankNominalV(bankModel);
   const netW = solarW + otherW - drawW;
+  return { drawW, sourceW: solarW + otherW, solarW, netW, netA: netW / v, bankV: v };
+}
+
+/** The projection and the present figures of the primary bank for one state at `atMs`. */
+export function nowFigures(model: RigModel, graph: CircuitGraph, s: CurrentState, atMs: number, options: ProjectionOptions = {}): NowFigures {
+  const projection = runProjection(model, graph, s, options);
+  const bank = projection.banks.find((b) => b.bankId === projection.primaryBankId)!;
+  const bankModel = model.banks.find((b) => b.id === bank.bankId)!;
   const entry = s.banks.find((b) => b.bankId === bankModel.id);
   return {
     projection,
     bank,
     bankModel,
     cutoffSocPct: usableEnergy(bankModel, bank.startSocPct).cutoffSocPct,
-    present: { drawW, sourceW: solarW + otherW, solarW, netW, netA: netW / v, bankV: v },
+    present: presentPower(model, graph, s, projection, atMs),
     socEstimate: entry?.socPct === undefined && entry?.restingV !== undefined ? socFromRestingVoltage(bankModel, entry.restingV) : null,
   };
 }
