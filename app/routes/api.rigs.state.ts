@@ -7,7 +7,9 @@ import { apiError, issuesOf, readJson } from "~/lib/http";
 import { getLatestReading, getRigState, writeRigState } from "~/repos/rig-state.server";
 import { recordServerChange } from "~/repos/sync.server";
 import { getAsBuilt } from "~/repos/rigs.server";
-import { checkChangeAgainstModel, stateWriteSchema } from "~/schemas/rig-state";
+import { buildCircuitGraph } from "~/engine/circuit-graph";
+import { solveState } from "~/engine/solution";
+import { checkChangeAgainstModel, effectiveLoadsOn, stateWriteSchema } from "~/schemas/rig-state";
 
 const noStore = { "cache-control": "private, no-store" };
 
@@ -15,8 +17,17 @@ const noStore = { "cache-control": "private, no-store" };
 export async function loader({ request, params }: Route.LoaderArgs) {
   const db = getDb();
   const access = await requireRigRole(request, params.rigId, "guest", db);
-  const [state, latestReading] = await Promise.all([getRigState(db, access.rig.id), getLatestReading(db, access.rig.id)]);
-  return Response.json({ state, latestReading, role: access.role }, { headers: noStore });
+  const [state, latestReading, asBuilt] = await Promise.all([getRigState(db, access.rig.id), getLatestReading(db, access.rig.id), getAsBuilt(db, access.rig.id)]);
+  // Every switch's position now: recorded ones, and the rest as the engine resolves them
+  // (normal position, following the loads on, or off; a changeover with none is "unknown").
+  const checked = asBuilt ? validateModel(asBuilt.document) : null;
+  const switchPositions = checked?.ok
+    ? Object.values(solveState(checked.model, buildCircuitGraph(checked.model, state.positions), {
+        modeId: state.modeId ?? checked.model.modes[0]!.id,
+        loadsOn: [...effectiveLoadsOn(checked.model, state.modeId, state.switches)],
+      }).positions)
+    : [];
+  return Response.json({ state, switchPositions, latestReading, role: access.role }, { headers: noStore });
 }
 
 /**

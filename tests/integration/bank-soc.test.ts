@@ -68,6 +68,7 @@ async function run(fn: (args: never) => Promise<unknown> | unknown, req: Request
   }
 }
 
+const getState = (rigId: string, cookie: string) => run(stateRoute.loader, request(`/api/rigs/${rigId}/state`, "GET", { cookie }), rigId);
 const postState = (rigId: string, call: Call) => run(stateRoute.action, request(`/api/rigs/${rigId}/state`, "POST", call), rigId);
 
 describe("SoC for every bank", () => {
@@ -83,5 +84,18 @@ describe("SoC for every bank", () => {
     expect(body.state.bankSocs?.starter?.socPct).toBe(88);
     const bad = await postState(j.rig.id, { cookie: j.sam.cookie, body: { baseVersion: 2, change: { kind: "soc", bankId: "nowhere", soc: { socPct: 50, source: "entered", takenAt } } } });
     expect(bad.status).toBe(400);
+  });
+});
+
+describe("every switch has a position in the state", () => {
+  test("GET answers each switch's position and where it came from", async () => {
+    const j = await juniper();
+    await postState(j.rig.id, { cookie: j.sam.cookie, body: { baseVersion: 0, change: { kind: "switch", loads: [{ loadId: "laptop", on: true }], positions: [{ switchId: "sw-cab", position: "off" }] } } });
+    const res = await getState(j.rig.id, j.noor.cookie);
+    const body = (await res.json()) as { switchPositions: { switchId: string; position: string; origin: string }[] };
+    expect(body.switchPositions).toHaveLength(juniperModel.switches.length);
+    // The changeover set to "off" is off (and conducts nowhere); the enable follows the fridge.
+    expect(body.switchPositions.find((p) => p.switchId === "sw-cab")).toMatchObject({ position: "off", origin: "set" });
+    expect(body.switchPositions.find((p) => p.switchId === "sw-bank-enable")).toMatchObject({ position: "on", origin: "follows-loads" });
   });
 });
