@@ -137,6 +137,14 @@ describe("Larkspur: two split-port lithium batteries, an AGM, a changeover", () 
     expect(s2.sources.pv!.bankShares.map((s) => s.share)).toEqual([0.4, 0.4, 0.2]);
   });
 
+  it("a changeover set to off conducts nowhere: the critical loads have no power and no finding asks for a position", () => {
+    const sol = solveState(m, at({ "sw-crit": "off" }), camp);
+    for (const id of ["fridge", "lights", "pump", "usb", "cam"]) expect(sol.loads[id]!.powered).toBe(false);
+    expect(sol.positions["sw-crit"]!.origin).toBe("set");
+    expect(runAudit(m, at({ "sw-crit": "off" }), camp).findings.some((f) => f.kind === "changeover-no-position")).toBe(false);
+    expect(computeBudget(m, at({ "sw-crit": "off" }), camp).loadWhPerDay).toBe(0);
+  });
+
   it("a changeover with no position is taken as off and reported", () => {
     const a = runAudit(m, at({}), camp);
     const f = a.findings.find((x) => x.kind === "changeover-no-position")!;
