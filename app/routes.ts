@@ -42,6 +42,7 @@ export default [
   route("api/rigs/:rigId/model", "routes/api.rigs.$rigId.model.ts"),
   route("api/rigs/:rigId/state", "routes/api.rigs.$rigId.state.ts"),
   route("api/rigs/:rigId/modes", "routes/api.rigs.$rigId.modes.ts"),
+  route("api/rigs/:rigId/compare", "routes/api.rigs.$rigId.compare.ts"),
   route("api/rigs/:rigId/push", "routes/api.rigs.$rigId.push.ts"),
   route("api/v1/rigs/:rigId/readings", "routes/api.v1.rigs.$rigId.readings.ts"),
   route("api/v1/device-readings.schema.json", "routes/api.v1.device-readings-schema.ts"),

@@ -7,10 +7,14 @@ import { gzipSync } from "node:zlib";
 import { availableParallelism, loadavg } from "node:os";
 import { fileURLToPath } from "node:url";
 import { largeRig, LARGE_RIG_COUNTS } from "../tests/fixtures/large-rig";
-import {
-  buildCircuitGraph, parseProjectionRequest, runAudit, runProjection, runProjectionRequest, validateModel,
-  type CurrentState, type RigModel,
-} from "../app/engine/index";
+import { parseProjectionRequest, runProjectionRequest } from "../app/engine/api";
+import { runAudit } from "../app/engine/audit";
+import { buildCircuitGraph } from "../app/engine/circuit-graph";
+import { planForDawn } from "../app/engine/dawn-plan";
+import { validateModel, type RigModel } from "../app/engine/model";
+import { runProjection } from "../app/engine/projection";
+import { solveState } from "../app/engine/solution";
+import type { CurrentState } from "../app/engine/state";
 
 interface Row {
   name: string;
@@ -75,9 +79,21 @@ function engineSections(): Section[] {
           runProjectionRequest({ ...parsed.value, state: { ...state, loadsOn } });
         });
         const validate = timeIt(() => validateModel(model));
+        // The electrical solution for one switch change (fresh graph: nothing memoised).
+        let flip = 0;
+        const solution = timeIt(() => {
+          flip++;
+          solveState(model, buildCircuitGraph(model, { "sw-cab": flip % 2 ? "house" : "starter" }), { modeId: "m-parked" });
+        });
+        // Dawn plan on a state that falls short (house bank at 55 %), 60 loads: the greedy search.
+        const short: CurrentState = { ...state, banks: [{ bankId: "house", socPct: 55 }, { bankId: "aux", socPct: 60 }, { bankId: "starter", socPct: 90 }] };
+        const dawnProbe = planForDawn(model, graph, short, { marginSocPct: 5 });
+        const dawn = timeIt(() => planForDawn(model, graph, short, { marginSocPct: 5 }), { warmup: 10, runs: 60 });
         return [
           { name: "72-h projection, 5-min steps", ...proj, unit: "ms", target: 2 },
-          { name: "full audit + circuit graph", ...audit, unit: "ms", target: 2 },
+          { name: "full audit (circuits + findings) + circuit graph", ...audit, unit: "ms", target: 4 },
+          { name: "electrical solution after a switch change (graph + solution)", ...solution, unit: "ms", target: 2 },
+          { name: `dawn plan, ${dawnProbe.method} search (${dawnProbe.found ? `${dawnProbe.actions.length} actions` : "none found"}, ${dawnProbe.projectionsRun} projections)`, ...dawn, unit: "ms", target: 20 },
           { name: "all results for one toggle", ...tap, unit: "ms", target: 4 },
           { name: "model validation (zod + references)", ...validate, unit: "ms", target: Number.NaN },
         ];
@@ -86,9 +102,12 @@ function engineSections(): Section[] {
     {
       name: "Engine bundle for the browser (esbuild, minified, gzip)",
       run: async () => {
-        const entry = fileURLToPath(new URL("../app/engine/index.ts", import.meta.url));
+        // Every engine module the app and the phone use (there is no barrel file).
+        const dir = fileURLToPath(new URL("../app/engine/", import.meta.url));
+        const modules = ["api", "audit", "autonomy", "battery", "cable", "capacity", "circuit-graph", "compare", "dawn-plan", "draw", "findings", "model", "now", "operations", "primary-bank", "projection", "solar", "solution", "state", "time"];
+        const contents = modules.map((m) => `export * from "./${m}";`).join("\n");
         const size = async (external: string[]) => {
-          const out = await build({ entryPoints: [entry], bundle: true, minify: true, format: "esm", platform: "browser", target: "es2022", write: false, external, treeShaking: true });
+          const out = await build({ stdin: { contents, resolveDir: dir, loader: "ts" }, bundle: true, minify: true, format: "esm", platform: "browser", target: "es2022", write: false, external, treeShaking: true });
           const code = out.outputFiles[0]!.contents;
           return { raw: code.byteLength / 1024, gz: gzipSync(code, { level: 9 }).byteLength / 1024 };
         };

@@ -219,6 +219,8 @@ export const rigState = pgTable(
     socSource: socSource("soc_source"),
     socRestingV: doublePrecision("soc_resting_v"),
     socTakenAt: timestamp("soc_taken_at", { withTimezone: true }),
+    /** SoC entries of the other banks: bankId → { socPct, source, restingV?, takenAt } (engine issue 10). */
+    bankSocs: jsonb("bank_socs").$type<Record<string, { socPct: number; source: "entered" | "resting_voltage" | "logbook"; restingV?: number; takenAt: string }>>().notNull().default({}),
     /** { kind: "home" } | { kind: "device" | "typed", latDeg, lonDeg } */
     place: jsonb("place").$type<Record<string, unknown>>().notNull().default({ kind: "home" }),
     /** { kind: "clear" | "hazy" | "overcast" } | { kind: "percent", pct } */

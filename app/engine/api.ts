@@ -1,7 +1,7 @@
 /**
  * POST /api/v1/projection: the request schema, a pure runner and the JSON Schema.
- * The route parses the body with `parseProjectionRequest` (or `handleProjectionRequest`),
- * answers 400 with the issues' paths on failure and 200 with the result otherwise.
+ * The route parses the body with `parseProjectionRequest`, answers 400 with the issues' paths
+ * on failure and 200 with `runProjectionRequest`'s result otherwise.
  */
 import { z } from "zod";
 import { runAudit, type Audit } from "./audit";
@@ -9,9 +9,13 @@ import { autonomy, type Autonomy } from "./autonomy";
 import { buildCircuitGraph, type SwitchStep } from "./circuit-graph";
 import type { How } from "./explain";
 import type { Budget } from "./draw";
-import { rigModelSchema, validateModel, type ModelIssue, type RigModel } from "./model";
+import { migrateModel, rigModelSchema, validateModel, type ModelIssue, type RigModel } from "./model";
 import { runProjection, type BankProjection } from "./projection";
 import { currentStateSchema, type CurrentState } from "./state";
+import { planForDawn, type DawnPlan } from "./dawn-plan";
+import { operationsFor, type LoadOperations } from "./operations";
+import { presentPower, type PresentPower } from "./now";
+import { mainBankId, type BankShare, type BmsStateNow, type ResolvedPosition } from "./solution";
 
 export const projectionOptionsSchema = z.object({
   /** Hours to simulate, default 72. */
@@ -20,6 +24,8 @@ export const projectionOptionsSchema = z.object({
   stepMin: z.number().int().min(1).max(60).optional(),
   /** Include the SoC curves (default true); false gives only the headline figures. */
   includeCurves: z.boolean().optional(),
+  /** Margin the dawn plan must leave above the stop SoC at the next charge, % points (default 0). */
+  dawnMarginSocPct: z.number().finite().min(0).max(50).optional(),
 });
 
 export const projectionRequestSchema = z.object({
@@ -39,12 +45,15 @@ export interface LoadGraphSummary {
   switchCount: number;
   outsideLowVoltageProtection: boolean;
   drainsBankIds: string[];
+  powered: boolean;
+  bankShares: BankShare[];
   forcesStandby: { kind: string; id: string; name: string; w: number }[];
   how: How;
 }
 
 export interface ProjectionResult {
-  schemaVersion: 1;
+  /** Version of this answer's shape (2: solution, operations and findings added). */
+  schemaVersion: 2;
   projection: {
     startMs: number;
     stepMin: number;
@@ -57,6 +66,19 @@ export interface ProjectionResult {
   budget: Budget;
   audit: Audit;
   circuitGraph: { loads: LoadGraphSummary[] };
+  /** The electrical solution of the state: every switch's position, BMS states, nets. */
+  solution: {
+    positions: ResolvedPosition[];
+    bms: BmsStateNow[];
+    nets: { id: number; current: "dc" | "ac"; buses: string[]; banks: BankShare[]; sourceIds: string[]; splitRule: string; voltageV: number }[];
+    standbyBmsW: number;
+  };
+  /** How to power each load from "all off" and from the present positions. */
+  operations: { loadId: string; allOff: LoadOperations | null; now: LoadOperations | null }[];
+  /** Draw and source power of each bank at the state's instant (the Now screen's figures). */
+  present: (PresentPower & { bankId: string })[];
+  /** The dawn plan when the verdict falls short (null when it passes). */
+  dawnPlan: DawnPlan | null;
   autonomy: Autonomy[];
 }
 
@@ -69,7 +91,11 @@ function zodIssues(err: z.ZodError): ModelIssue[] {
 /** Schema, referential and state checks. Never throws. */
 export function parseProjectionRequest(body: unknown): ParseResult<ProjectionRequest> {
   try {
-    const parsed = projectionRequestSchema.safeParse(body);
+    // Version 0/1 model documents still import: migrate before the schema check.
+    const input = typeof body === "object" && body !== null && !Array.isArray(body) && "model" in body
+      ? { ...(body as Record<string, unknown>), model: migrateModel((body as Record<string, unknown>).model) }
+      : body;
+    const parsed = projectionRequestSchema.safeParse(input);
     if (!parsed.success) return { ok: false, issues: zodIssues(parsed.error) };
     const v = validateModel(parsed.data.model);
     if (!v.ok) return { ok: false, issues: v.issues.map((i) => ({ path: ["model", ...i.path], message: i.message })) };
@@ -115,25 +141,32 @@ export function runProjectionRequest(req: ProjectionRequest): ProjectionResult {
     ...(req.options?.stepMin !== undefined ? { stepMin: req.options.stepMin } : {}),
   });
   const curves = req.options?.includeCurves ?? true;
-  const audit = runAudit(model, graph);
+  const plan = { modeId: state.modeId, ...(state.loadsOn ? { loadsOn: state.loadsOn } : {}), ...(state.inverterIdsOn ? { inverterIdsOn: state.inverterIdsOn } : {}) };
+  const sol = projection.budget.solution;
+  const audit = runAudit(model, graph, plan);
   const loads: LoadGraphSummary[] = model.loads.map((l) => {
     const g = graph.loads[l.id]!;
+    const f = sol.loads[l.id]!;
     return {
       loadId: l.id,
       name: l.name,
       essential: l.essential,
-      bankId: g.bankId,
-      via: g.primary?.via.map((v) => v.name) ?? [],
-      switchPath: g.switchPath,
-      switchCount: g.switchCount,
-      outsideLowVoltageProtection: g.outsideLowVoltageProtection,
-      drainsBankIds: g.drainsBankIds,
+      bankId: mainBankId(f.bankShares),
+      via: f.path?.via.map((v) => v.name) ?? [],
+      switchPath: f.path?.steps ?? [],
+      switchCount: f.path?.switchCount ?? 0,
+      outsideLowVoltageProtection: f.powered && f.drainsBankIds.length > 0,
+      drainsBankIds: f.drainsBankIds,
+      powered: f.powered,
+      bankShares: f.bankShares,
       forcesStandby: g.forcesStandby,
       how: g.how,
     };
   });
+  const primary = projection.banks.find((b) => b.bankId === projection.primaryBankId)!;
+  const dawnPlan = primary.tillDawn.reaches ? null : planForDawn(model, graph, state, { marginSocPct: req.options?.dawnMarginSocPct ?? 0 });
   return {
-    schemaVersion: 1,
+    schemaVersion: 2,
     projection: {
       startMs: projection.startMs,
       stepMin: projection.stepMin,
@@ -146,19 +179,21 @@ export function runProjectionRequest(req: ProjectionRequest): ProjectionResult {
     budget: projection.budget,
     audit,
     circuitGraph: { loads },
+    solution: {
+      positions: Object.values(sol.positions),
+      bms: Object.values(sol.bms),
+      nets: sol.nets.map((n) => ({ id: n.id, current: n.current, buses: n.nodes.filter((k) => k.startsWith("bus:")).map((k) => k.slice(4)), banks: n.banks, sourceIds: n.sourceIds, splitRule: n.splitRule, voltageV: n.voltageV })),
+      standbyBmsW: sol.standbyBmsW,
+    },
+    operations: model.loads.map((l) => ({
+      loadId: l.id,
+      allOff: operationsFor(model, graph, l.id, "all-off", { plan }),
+      now: operationsFor(model, graph, l.id, "now", { plan }),
+    })),
+    dawnPlan,
+    present: model.banks.map((b) => ({ bankId: b.id, ...presentPower(model, graph, state, projection, projection.startMs, b.id) })),
     autonomy: model.banks.map((b) => autonomy(model, graph, projection.budget, b.id, state)),
   };
-}
-
-/** Parse and run: `{ status: 200, body: result }` or `{ status: 400, body: { code, message, issues } }`. */
-export function handleProjectionRequest(body: unknown):
-  | { status: 200; body: ProjectionResult }
-  | { status: 400; body: { code: "invalid_request"; message: string; issues: ModelIssue[] } } {
-  const parsed = parseProjectionRequest(body);
-  if (!parsed.ok) {
-    return { status: 400, body: { code: "invalid_request", message: "The request does not describe a valid rig and state.", issues: parsed.issues } };
-  }
-  return { status: 200, body: runProjectionRequest(parsed.value) };
 }
 
 /** JSON Schema of the request body (draft 2020-12), for GET /api/v1/schema. */

@@ -8,6 +8,9 @@ import { bankNominalV } from "./battery";
 import { ampacityA, cableLabel, checkProtection, voltageDrop, type ProtectionCheck, type TempRatingC, type VoltageDrop } from "./cable";
 import { loadPower } from "./draw";
 import { how, r, type How } from "./explain";
+import { auditFindings, type EndToEndDrop, type Finding } from "./findings";
+import type { PlanInput } from "./plan";
+import { solveState } from "./solution";
 
 export interface CircuitAudit {
   circuitId: string;
@@ -25,7 +28,11 @@ export interface CircuitAudit {
 
 export interface Audit {
   circuits: CircuitAudit[];
-  /** Loads fed from a port without low-voltage protection. */
+  /** Wiring findings for the present switch positions, worst first (./findings). */
+  findings: Finding[];
+  /** Bank-to-load voltage drop of every DC load on, through cables and devices. */
+  endToEnd: EndToEndDrop[];
+  /** Loads switched on and fed, in the present positions, from a port without low-voltage protection. */
   outsideLowVoltageProtection: { loadId: string; name: string; bankIds: string[]; essential: boolean }[];
   failures: { circuitId: string; message: string }[];
   failureCount: number;
@@ -42,7 +49,8 @@ function continuousLoads(model: RigModel): Set<string> {
   return s;
 }
 
-export function runAudit(model: RigModel, graph: CircuitGraph): Audit {
+/** The audit for the graph's switch positions and a plan (default: the first mode). */
+export function runAudit(model: RigModel, graph: CircuitGraph, plan: PlanInput = { modeId: model.modes[0]!.id }): Audit {
   const continuous = continuousLoads(model);
   const loads = new Map(model.loads.map((l) => [l.id, l]));
   const buses = new Map(model.buses.map((b) => [b.id, b]));
@@ -74,7 +82,7 @@ export function runAudit(model: RigModel, graph: CircuitGraph): Audit {
     if (c.from.kind !== "source") continue;
     const s = sources.get(c.from.id);
     if (!s) continue;
-    const v = bankV(s.bankId);
+    const v = c.to.kind === "bank" ? bankV(c.to.id) : houseV;
     const a = s.kind === "solar" ? s.maxChargeA ?? s.peakW / v : s.ratedA;
     const key = c.to.kind === "bank" ? `${c.to.id}/${c.to.port}` : c.to.id;
     sourceAInto.set(key, (sourceAInto.get(key) ?? 0) + a);
@@ -147,10 +155,11 @@ export function runAudit(model: RigModel, graph: CircuitGraph): Audit {
     };
   });
 
+  const sol = solveState(model, graph, plan);
   const outside = model.loads
-    .map((l) => ({ l, g: graph.loads[l.id] }))
-    .filter((x) => x.g?.outsideLowVoltageProtection)
-    .map((x) => ({ loadId: x.l.id, name: x.l.name, bankIds: x.g!.drainsBankIds, essential: x.l.essential }));
+    .filter((l) => sol.loadsOn.includes(l.id) && sol.loads[l.id]!.powered && sol.loads[l.id]!.drainsBankIds.length > 0)
+    .map((l) => ({ loadId: l.id, name: l.name, bankIds: sol.loads[l.id]!.drainsBankIds, essential: l.essential }));
   const failures = circuits.flatMap((c) => c.failures.map((message) => ({ circuitId: c.circuitId, message })));
-  return { circuits, outsideLowVoltageProtection: outside, failures, failureCount: failures.length, caution: SAFETY_CAUTION };
+  const { findings, endToEnd } = auditFindings(model, graph, plan);
+  return { circuits, findings, endToEnd, outsideLowVoltageProtection: outside, failures, failureCount: failures.length, caution: SAFETY_CAUTION };
 }

@@ -8,6 +8,7 @@ import type { Budget } from "./draw";
 import { how, r, type How } from "./explain";
 import { harvestArrays } from "./solar";
 import type { CurrentState } from "./state";
+import { localDate } from "./time";
 
 /** Share of clear-sky harvest assumed for "typical" sun when the caller gives none (an
  * assumption, not a climate statistic: override with the local clearness). */
@@ -32,6 +33,10 @@ export interface Autonomy {
   how: How;
 }
 
+/**
+ * Days of autonomy of one bank. Typical solar needs a date: it is taken from `state.dateTime`;
+ * without a state there is no solar estimate (the engine never reads the clock).
+ */
 export function autonomy(
   model: RigModel, graph: CircuitGraph, budget: Budget, bankId: string,
   state?: Pick<CurrentState, "dateTime" | "location" | "weatherFactor" | "ambientC">,
@@ -49,17 +54,21 @@ export function autonomy(
   const daysNoCharge = effDaily > 0 ? full.usableWh / effDaily : null;
 
   const place = state?.location ?? model.home;
-  const date = (state?.dateTime ?? new Date().toISOString()).slice(0, 10);
+  const date = state ? localDate(Date.parse(state.dateTime), model.timeZone) : null;
   const wf = opts.typicalWeatherFactor ?? state?.weatherFactor ?? TYPICAL_WEATHER_FACTOR;
-  const arrays = model.sources.filter((s): s is SolarSource => s.kind === "solar" && s.bankId === bank.id);
+  // The arrays whose current reaches this bank, with the bank's share of each (./solution).
+  const sol = budget.solution;
+  const shareOf = (id: string) => sol.sources[id]?.bankShares.find((x) => x.bankId === bank.id)?.share ?? 0;
+  const arrays = model.sources.filter((s): s is SolarSource => s.kind === "solar" && shareOf(s.id) > 0);
+  const shares = arrays.map((a) => shareOf(a.id));
   let solarWh = 0;
-  if (arrays.length) {
-    const key = JSON.stringify([arrays, place, model.timeZone, date, wf, state?.ambientC ?? 20, v]);
+  if (arrays.length && date) {
+    const key = JSON.stringify([arrays, shares, place, model.timeZone, date, wf, state?.ambientC ?? 20, v]);
     const cached = harvestCache.get(key);
     if (cached !== undefined) solarWh = cached;
     else {
       const h = harvestArrays(arrays, { ...place, timeZone: model.timeZone }, date, { weatherFactor: wf, ambientC: state?.ambientC ?? 20, bankV: v });
-      for (const row of h.hourlyWh) for (const wh of row) solarWh += wh;
+      h.hourlyWh.forEach((row, j) => { for (const wh of row) solarWh += wh * shares[j]!; });
       if (harvestCache.size >= 32) harvestCache.delete(harvestCache.keys().next().value!);
       harvestCache.set(key, solarWh);
     }

@@ -9,8 +9,8 @@ import type { Bank } from "./model";
 const house = juniperModel.banks[0]!;
 const flooded12: Bank = {
   id: "f", name: "Flooded 12 V", role: "auxiliary", chemistry: "flooded", ratedAh: 100, batteryNominalV: 12,
-  seriesCount: 1, parallelCount: 1, usableFloorSocPct: 50, lowVoltageCutoffV: 11.5, standbyAlwaysW: 0,
-  standbyContactorW: 0, ports: [{ id: "main", name: "Main", role: "common", lowVoltageProtected: false, contactor: false }],
+  seriesCount: 1, parallelCount: 1, usableFloorSocPct: 50, lowVoltageCutoffV: 11.5,
+  ports: [{ id: "main", name: "Main", role: "common", lowVoltageProtected: false, chargeProtected: false, contactor: false }],
 };
 
 describe("Peukert", () => {

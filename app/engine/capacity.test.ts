@@ -4,8 +4,8 @@ import type { Bank } from "./model";
 
 const flooded: Bank = {
   id: "f", name: "Flooded bank", role: "house", chemistry: "flooded", ratedAh: 200, batteryNominalV: 12, seriesCount: 1,
-  parallelCount: 1, usableFloorSocPct: 50, lowVoltageCutoffV: 11.5, chargeEfficiencyPct: 85, standbyAlwaysW: 0, standbyContactorW: 0,
-  ports: [{ id: "main", name: "Main", role: "common", lowVoltageProtected: false, contactor: false }],
+  parallelCount: 1, usableFloorSocPct: 50, lowVoltageCutoffV: 11.5, chargeEfficiencyPct: 85,
+  ports: [{ id: "main", name: "Main", role: "common", lowVoltageProtected: false, chargeProtected: false, contactor: false }],
 };
 
 describe("capacity from the logbook", () => {

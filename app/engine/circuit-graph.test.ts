@@ -8,9 +8,10 @@ describe("circuit graph of Juniper", () => {
   it("the induction hob's switch path runs bank → inverter → AC breakers, in order", () => {
     const hob = g.loads.hob!;
     expect(hob.switchPath.map((s) => `${s.name}:${s.position}`)).toEqual([
-      "Bank load enable:on", "Main disconnect:on", "Inverter power:on", "AC main breaker 20 A:closed", "Hob breaker 15 A:closed",
+      "Main disconnect:on", "Inverter power:on", "AC main breaker 20 A:closed", "Hob breaker 15 A:closed",
     ]);
-    expect(hob.switchCount).toBe(5);
+    // Version 2: the bank load enable is a BMS control, not a device in the circuit.
+    expect(hob.switchCount).toBe(4);
     expect(hob.primary?.via.map((v) => v.name)).toEqual(["House bus", "Inverter 2000 W", "AC outlets"]);
     expect(hob.forcesStandby.map((f) => f.kind)).toEqual(["contactor", "inverter"]);
     expect(hob.outsideLowVoltageProtection).toBe(false);
@@ -21,10 +22,12 @@ describe("circuit graph of Juniper", () => {
     expect(laptop.bankPaths).toHaveLength(2);
     expect(laptop.bankId).toBe("house");
     expect(laptop.switchPath.find((s) => s.kind === "changeover")?.position).toBe("house");
-    // The starter path has no low-voltage protection: the laptop can drain the starter battery.
-    expect(laptop.outsideLowVoltageProtection).toBe(true);
-    expect(laptop.drainsBankIds).toEqual(["starter"]);
+    // In its normal position (house) the laptop is behind the house bank's protection; only the
+    // starter position, which has none, puts it outside.
+    expect(laptop.outsideLowVoltageProtection).toBe(false);
     const onStarter = buildCircuitGraph(juniperModel, { "sw-cab": "starter" }).loads.laptop!;
+    expect(onStarter.outsideLowVoltageProtection).toBe(true);
+    expect(onStarter.drainsBankIds).toEqual(["starter"]);
     expect(onStarter.bankId).toBe("starter");
     expect(onStarter.switchPath.map((s) => `${s.name}:${s.position}`)).toEqual(["Cab sockets changeover:starter", "USB-C socket switch:on"]);
     expect(onStarter.forcesStandby).toEqual([]);

@@ -1,11 +1,13 @@
 /**
- * The circuit graph: for every load, the feed paths from each bank (and charge source), the
- * switch path a person must operate, whether the load sits behind the bank's low-voltage
- * protection, and which standby draws it forces on.
+ * The circuit graph: the static wiring (every feed path from each bank port and charge source
+ * to each load and inverter) plus the switch positions recorded for it. The state-dependent
+ * answers (powered, from which banks, protection in the present positions) come from
+ * `solveState` in ./solution; `loads` here summarises them for the first mode.
  */
 import type { Bank, Circuit, NodeRef, RigModel, Switch } from "./model";
 import { nodeKey, validateModel, type ModelIssue } from "./model";
 import { how, type How } from "./explain";
+import { mainBankId, solveState } from "./solution";
 
 export interface SwitchStep {
   deviceId: string;
@@ -46,12 +48,12 @@ export interface LoadGraph {
   bankPaths: FeedPath[];
   /** Paths straight from a charge source (no bank), e.g. a load on the charge bus. */
   sourcePaths: FeedPath[];
-  /** The path in use for the given switch positions (house bank and fewer switches preferred). */
+  /** The conducting path in use (from the bank with the largest share), or null when unpowered. */
   primary: FeedPath | null;
   bankId: string | null;
   switchPath: SwitchStep[];
   switchCount: number;
-  /** True if any bank path bypasses the bank's low-voltage protection. */
+  /** In the present positions, a bank feeding it has no low-voltage protection on that port. */
   outsideLowVoltageProtection: boolean;
   /** Banks this load can drain past their cutoff. */
   drainsBankIds: string[];
@@ -60,6 +62,11 @@ export interface LoadGraph {
 }
 
 export interface CircuitGraph {
+  /** Positions recorded in the rig state that this graph was built for. */
+  positions: Record<string, string>;
+  /** Every feed path from a bank port (supply → sink), per load and per inverter. */
+  paths: { loads: Record<string, FeedPath[]>; inverters: Record<string, FeedPath[]> };
+  /** Per load, for the recorded positions and the first mode's loads. */
   loads: Record<string, LoadGraph>;
   /** How each inverter's DC side is fed. */
   inverters: Record<string, { bankId: string | null; needsContactor: boolean; lowVoltageProtected: boolean; switchPath: SwitchStep[] }>;
@@ -98,7 +105,6 @@ export function buildCircuitGraph(model: RigModel, switchPositions: Record<strin
     for (const o of list) names.set(o.id, o.name);
   }
 
-  const loads: Record<string, LoadGraph> = {};
   const loadsByCircuit: Record<string, string[]> = {};
   const loadsByBus: Record<string, string[]> = {};
   for (const c of model.circuits) loadsByCircuit[c.id] = [];
@@ -132,9 +138,11 @@ export function buildCircuitGraph(model: RigModel, switchPositions: Record<strin
     let needsContactor = false;
     if (first.from.kind === "bank") {
       supply = { kind: "bank", bankId: first.from.id, portId: first.from.port };
-      const port = banks.get(first.from.id)?.ports.find((p) => p.id === (first.from as { port: string }).port);
+      const bank = banks.get(first.from.id);
+      const port = bank?.ports.find((p) => p.id === (first.from as { port: string }).port);
       lowVoltageProtected = port?.lowVoltageProtected ?? false;
-      needsContactor = port?.contactor ?? false;
+      // The port conducts only in some BMS states (a contactor or a switched output).
+      needsContactor = !!bank?.bms && !!port && !bank.bms.states[0]!.livePorts.includes(port.id);
     } else {
       supply = { kind: "source", sourceId: first.from.id };
     }
@@ -172,44 +180,47 @@ export function buildCircuitGraph(model: RigModel, switchPositions: Record<strin
     walk(start, [], new Set([start]));
     return { bankPaths, sourcePaths };
   };
-  const consistent = (p: FeedPath) =>
-    p.steps.every((s) => switchPositions[s.deviceId] === undefined || switchPositions[s.deviceId] === s.position);
-  const rank = (p: FeedPath) => {
-    const bank = p.supply.kind === "bank" ? banks.get(p.supply.bankId) : undefined;
-    return (consistent(p) ? 0 : 1000) + (bank?.role === "house" ? 0 : 100) + p.switchCount;
-  };
-  const pickPrimary = (paths: FeedPath[]): FeedPath | null =>
-    paths.length ? [...paths].sort((a, b) => rank(a) - rank(b))[0]! : null;
-
-  const inverterFeeds: CircuitGraph["inverters"] = {};
-  for (const inv of model.inverters) {
-    const { bankPaths } = pathsTo(nodeKey({ kind: "inverter", id: inv.id }));
-    const p = pickPrimary(bankPaths);
-    inverterFeeds[inv.id] = {
-      bankId: p?.supply.kind === "bank" ? p.supply.bankId : null,
-      needsContactor: p?.needsContactor ?? false,
-      lowVoltageProtected: p?.lowVoltageProtected ?? false,
-      switchPath: p?.steps ?? [],
-    };
-  }
-
+  const paths: CircuitGraph["paths"] = { loads: {}, inverters: {} };
+  for (const inv of model.inverters) paths.inverters[inv.id] = pathsTo(nodeKey({ kind: "inverter", id: inv.id })).bankPaths;
+  const sourcePathsOf: Record<string, FeedPath[]> = {};
   for (const load of model.loads) {
     const { bankPaths, sourcePaths } = pathsTo(nodeKey({ kind: "load", id: load.id }));
-    const primary = pickPrimary(bankPaths);
-    const drains = new Set<string>();
-    for (const p of bankPaths) if (!p.lowVoltageProtected && p.supply.kind === "bank") drains.add(p.supply.bankId);
-
+    paths.loads[load.id] = bankPaths;
+    sourcePathsOf[load.id] = sourcePaths;
+  }
+  const rankStatic = (p: FeedPath) => (p.supply.kind === "bank" && banks.get(p.supply.bankId)?.role === "house" ? 0 : 100) + p.switchCount;
+  const graph: CircuitGraph = { positions: switchPositions, paths, loads: {}, inverters: {}, loadsByCircuit, loadsByBus };
+  const sol = solveState(model, graph, { modeId: model.modes[0]!.id });
+  const inverterFeeds: CircuitGraph["inverters"] = graph.inverters;
+  for (const inv of model.inverters) {
+    const f = sol.inverters[inv.id]!;
+    inverterFeeds[inv.id] = {
+      bankId: mainBankId(f.bankShares),
+      needsContactor: f.path?.needsContactor ?? false,
+      lowVoltageProtected: f.lowVoltageProtected,
+      switchPath: f.path?.steps ?? [],
+    };
+  }
+  const loads = graph.loads;
+  for (const load of model.loads) {
+    const bankPaths = paths.loads[load.id]!;
+    const feed = sol.loads[load.id]!;
+    // The conducting path; when unpowered, the path it would use (house bank, fewest devices),
+    // so the screens can say which switch stands in the way.
+    const primary = feed.path ?? [...bankPaths].sort((a, b) => rankStatic(a) - rankStatic(b))[0] ?? null;
+    const drains = new Set(feed.drainsBankIds);
     const forcesStandby: StandbyForced[] = [];
     if (primary?.needsContactor && primary.supply.kind === "bank") {
       const b = banks.get(primary.supply.bankId)!;
-      forcesStandby.push({ kind: "contactor", id: b.id, name: `${b.name} load contactor`, w: b.standbyContactorW });
+      const states = b.bms?.states ?? [];
+      const w = states.length ? Math.max(...states.map((x) => x.standbyW)) - states[0]!.standbyW : 0;
+      forcesStandby.push({ kind: "contactor", id: b.id, name: `${b.name} load contactor`, w });
     }
     for (const invId of primary?.inverterIds ?? []) {
       const inv = inverters.get(invId)!;
       forcesStandby.push({ kind: "inverter", id: inv.id, name: `${inv.name} idle`, w: inv.idleW });
     }
-
-    const bankId = primary?.supply.kind === "bank" ? primary.supply.bankId : null;
+    const bankId = mainBankId(feed.bankShares);
     const supplyName = primary?.supply.kind === "bank"
       ? `${names.get(primary.supply.bankId)} (${primary.supply.portId} port)`
       : "no bank";
@@ -217,7 +228,7 @@ export function buildCircuitGraph(model: RigModel, switchPositions: Record<strin
       loadId: load.id,
       name: load.name,
       bankPaths,
-      sourcePaths,
+      sourcePaths: sourcePathsOf[load.id]!,
       primary,
       bankId,
       switchPath: primary?.steps ?? [],
@@ -226,11 +237,11 @@ export function buildCircuitGraph(model: RigModel, switchPositions: Record<strin
       drainsBankIds: [...drains],
       forcesStandby,
       how: how(
-        "switch path = breakers and switches on each circuit from the bank port to the load, in order",
+        "feeds = conducting circuits from live bank ports in the present switch positions; devices listed from the bank port to the load",
         {
           supply: supplyName,
           via: primary?.via.map((v) => v.name).join(" → ") ?? "",
-          switchCount: primary?.switchCount ?? 0,
+          devices: primary?.switchCount ?? 0,
           pathsFromBanks: bankPaths.length,
         },
         drains.size
@@ -246,5 +257,5 @@ export function buildCircuitGraph(model: RigModel, switchPositions: Record<strin
     }
     for (const v of primary?.via ?? []) if (v.kind === "bus") loadsByBus[v.id]?.push(load.id);
   }
-  return { loads, inverters: inverterFeeds, loadsByCircuit, loadsByBus };
+  return graph;
 }

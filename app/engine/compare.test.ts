@@ -13,8 +13,8 @@ describe("draft vs as built", () => {
     const cmp = compareModels(juniperModel, draft, state, { horizonH: 24 });
     const storage = cmp.modes.find((m) => m.modeId === "storage")!;
     // The dish's 6 W standby is now live in Storage (charge side, no contactor): +6 W, +144 Wh/day.
-    expect(storage.draft!.standbyW - storage.asBuilt!.standbyW).toBeCloseTo(6, 9);
-    expect(storage.draft!.standbyWhPerDay - storage.asBuilt!.standbyWhPerDay).toBeCloseTo(144, 9);
+    expect(storage.b!.standbyW - storage.a!.standbyW).toBeCloseTo(6, 9);
+    expect(storage.b!.standbyWhPerDay - storage.a!.standbyWhPerDay).toBeCloseTo(144, 9);
     expect(cmp.outsideLowVoltageProtection.added).toEqual(["Satellite internet dish"]);
     expect(cmp.outsideLowVoltageProtection.removed).toEqual([]);
   });
@@ -25,9 +25,9 @@ describe("draft vs as built", () => {
     draft.protections.find((p) => p.id === "f-pump")!.ratingA = 3;
     const cmp = compareModels(juniperModel, draft, state, { horizonH: 24 });
     const fridge = cmp.essentialLoads.find((l) => l.loadId === "fridge")!;
-    expect(fridge.asBuiltSwitchCount).toBe(4); // enable, main, panel, fridge switch
-    expect(fridge.draftSwitchCount).toBe(3);
-    expect(cmp.auditFailures.asBuilt).toBe(0);
+    expect(fridge.aOperations).toBe(4); // from all off: bank load enable (BMS), main, panel, fridge switch
+    expect(fridge.bOperations).toBe(3);
+    expect(cmp.auditFailures.a).toBe(0);
     expect(cmp.auditFailures.added).toHaveLength(1);
     expect(cmp.auditFailures.added[0]).toMatch(/^c-pump: /);
   });
@@ -37,6 +37,6 @@ describe("draft vs as built", () => {
     draft.banks[0]!.parallelCount = 4;
     const cmp = compareModels(juniperModel, draft, state);
     const parked = cmp.modes.find((m) => m.modeId === "parked-night")!;
-    expect(parked.draft!.runwayH ?? Infinity).toBeGreaterThan(parked.asBuilt!.runwayH!);
+    expect(parked.b!.runwayH ?? Infinity).toBeGreaterThan(parked.a!.runwayH!);
   });
 });

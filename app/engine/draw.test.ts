@@ -40,7 +40,7 @@ describe("daily budget (worked examples, ours)", () => {
     // alarm 0.5 × 24 = 12; heater standby 0.2 × 24 = 4.8 (charge side stays live);
     // house electronics 14.4; starter 7.2; dish, fan and inverter standby are behind the open contactor.
     expect(b.totalWhPerDay).toBeCloseTo(38.4, 6);
-    expect(b.standby.some((s) => s.kind === "bank-contactor")).toBe(false);
+    expect(b.standby.find((s) => s.kind === "bank-bms" && s.bankId === "house")!.w).toBe(0.6);
     expect(b.banks[0]!.contactorEngaged).toBe(false);
   });
 
@@ -49,7 +49,9 @@ describe("daily budget (worked examples, ours)", () => {
     // The hob is not in the Storage mode, so it runs all day: 2,000 W × 80 % × 24 h
     expect(b.loads.find((l) => l.loadId === "hob")!.whPerDay).toBeCloseTo(38400, 6);
     expect(b.standby.some((s) => s.kind === "inverter-idle")).toBe(true);
-    expect(b.standby.some((s) => s.kind === "bank-contactor")).toBe(true);
+    // The enable follows the hob: the guard is engaged, 0.6 + 4.2 W.
+    expect(b.banks.find((x) => x.bankId === "house")!.contactorEngaged).toBe(true);
+    expect(b.standby.find((s) => s.kind === "bank-bms" && s.bankId === "house")!.w).toBeCloseTo(4.8, 9);
   });
 
   it("the 5-minute draw profile integrates to the budget", () => {

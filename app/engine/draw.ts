@@ -3,32 +3,26 @@
  * idle draw, standby of switched-off loads and of the bank's own electronics (always-on and
  * contactor-engaged parts), and the standby share of the day.
  */
-import type { Load, Mode, RigModel } from "./model";
+import type { Load, RigModel } from "./model";
 import type { CircuitGraph } from "./circuit-graph";
 import { bankNominalV } from "./battery";
 import { how, r, type How } from "./explain";
 import { windowHours } from "./units";
+import { findMode, planLoads, type PlanInput, type PlannedLoad } from "./plan";
+import { mainBankId, solveState, type BankShare, type Solution } from "./solution";
 
-export interface PlanInput {
-  modeId: string;
-  /** Loads switched on now; absent = the mode's loads. Loads on but not in the mode run all day. */
-  loadsOn?: string[];
-  /** Inverters on; absent = the mode's. */
-  inverterIdsOn?: string[];
-}
-
-export interface PlannedLoad {
-  load: Load;
-  on: boolean;
-  hoursPerDay: number;
-  windows: { startH: number; endH: number }[] | undefined;
-}
+export { findMode, planLoads, type PlanInput, type PlannedLoad };
 
 export interface LoadBudget {
   loadId: string;
   name: string;
   on: boolean;
+  /** Some bank or source feeds it in the present positions. */
+  powered: boolean;
+  /** The bank with the largest share (null: none feeds it). */
   bankId: string | null;
+  /** How its draw splits between the banks on its net. */
+  bankShares: BankShare[];
   hoursPerDay: number;
   /** Power at the device while running (AC side for AC loads). */
   runW: number;
@@ -46,13 +40,14 @@ export interface LoadBudget {
   how: How;
 }
 
-export type StandbyKind = "bank-always" | "bank-contactor" | "inverter-idle" | "inverter-off" | "load-standby";
+export type StandbyKind = "bank-bms" | "inverter-idle" | "inverter-off" | "load-standby";
 
 export interface StandbyItem {
   kind: StandbyKind;
   id: string;
   name: string;
   bankId: string | null;
+  bankShares: BankShare[];
   w: number;
   whPerDay: number;
 }
@@ -61,6 +56,10 @@ export interface BankBudget {
   bankId: string;
   name: string;
   nominalV: number;
+  /** The BMS state in the present positions (null: no BMS). */
+  bmsStateId: string | null;
+  bmsStateName: string;
+  /** A BMS port that is not live in the resting state is live now (load output engaged). */
   contactorEngaged: boolean;
   loadWhPerDay: number;
   standbyWhPerDay: number;
@@ -72,6 +71,8 @@ export interface BankBudget {
 
 export interface Budget {
   modeId: string;
+  /** The electrical solution the budget was computed for (positions, BMS states, nets). */
+  solution: Solution;
   modeName: string;
   loads: LoadBudget[];
   buses: { busId: string; name: string; runningW: number; runningA: number; whPerDay: number }[];
@@ -84,102 +85,53 @@ export interface Budget {
   how: How;
 }
 
-export function findMode(model: RigModel, modeId: string): Mode {
-  return model.modes.find((m) => m.id === modeId) ?? model.modes[0]!;
-}
-
-export function planLoads(model: RigModel, plan: PlanInput): PlannedLoad[] {
-  const mode = findMode(model, plan.modeId);
-  const entries = new Map(mode.loads.map((l) => [l.loadId, l]));
-  const onSet = plan.loadsOn ? new Set(plan.loadsOn) : new Set(mode.loads.filter((l) => l.hoursPerDay > 0).map((l) => l.loadId));
-  return model.loads.map((load) => {
-    const e = entries.get(load.id);
-    const on = onSet.has(load.id);
-    if (!on) return { load, on, hoursPerDay: 0, windows: undefined };
-    if (!e) return { load, on, hoursPerDay: 24, windows: undefined };
-    return { load, on, hoursPerDay: e.hoursPerDay, windows: e.windows?.length ? e.windows : undefined };
-  });
-}
-
 /**
  * Inverters on: the plan's list when given; otherwise the mode's, plus any inverter that an
  * AC load switched on needs.
  */
-export function invertersOn(model: RigModel, plan: PlanInput, graph?: CircuitGraph): Set<string> {
-  if (plan.inverterIdsOn) return new Set(plan.inverterIdsOn);
-  const on = new Set(findMode(model, plan.modeId).inverterIdsOn);
-  if (graph) {
-    for (const p of planLoads(model, plan)) {
-      if (p.on && p.load.current === "ac") for (const id of graph.loads[p.load.id]?.primary?.inverterIds ?? []) on.add(id);
-    }
-  }
-  return on;
-}
-
-/** Voltage of the bank feeding a load (nominal), or the first bank's. */
-function feedV(model: RigModel, bankId: string | null): number {
-  const b = model.banks.find((x) => x.id === bankId) ?? model.banks[0]!;
-  return bankNominalV(b);
+export function invertersOn(model: RigModel, plan: PlanInput, graph: CircuitGraph): Set<string> {
+  return new Set(solveState(model, graph, plan).inverterIdsOn);
 }
 
 /** Running power at the device and from the bank. */
-export function loadPower(model: RigModel, graph: CircuitGraph, load: Load): { runW: number; bankW: number; bankA: number; bankId: string | null; inverterId: string | null } {
-  const lg = graph.loads[load.id];
-  const bankId = lg?.bankId ?? null;
-  const v = feedV(model, bankId);
-  const inverterId = lg?.primary?.inverterIds[0] ?? null;
+export function loadPower(model: RigModel, graph: CircuitGraph, load: Load, plan?: PlanInput): { runW: number; bankW: number; bankA: number; bankId: string | null; inverterId: string | null; voltageV: number } {
+  const sol = solveState(model, graph, plan ?? { modeId: model.modes[0]!.id });
+  const feed = sol.loads[load.id];
+  const bankId = feed ? mainBankId(feed.bankShares) : null;
+  const v = feed?.voltageV ?? bankNominalV(model.banks[0]!);
+  const inverterId = feed?.inverterId ?? graph.paths.loads[load.id]?.[0]?.inverterIds[0] ?? null;
   const inv = inverterId ? model.inverters.find((i) => i.id === inverterId) : undefined;
   let runW: number;
   if (load.powerW !== undefined) runW = load.powerW;
   else runW = (load.currentA ?? 0) * (load.current === "ac" ? inv?.acNominalV ?? 230 : v);
   const bankW = load.current === "ac" && inv ? runW / (inv.efficiencyPct / 100) : runW;
-  return { runW, bankW, bankA: bankW / v, bankId, inverterId };
-}
-
-/** Which banks have their load contactor engaged: any load on, or inverter on, fed through it. */
-export function engagedContactors(model: RigModel, graph: CircuitGraph, planned: PlannedLoad[], invOn: Set<string>): Set<string> {
-  const engaged = new Set<string>();
-  for (const p of planned) {
-    if (!p.on) continue;
-    const lg = graph.loads[p.load.id];
-    if (lg?.primary?.needsContactor && lg.bankId) engaged.add(lg.bankId);
-  }
-  for (const id of invOn) {
-    const f = graph.inverters[id];
-    if (f?.needsContactor && f.bankId) engaged.add(f.bankId);
-  }
-  return engaged;
-}
-
-/** Whether a load's (or inverter's) supply port is live: non-contactor ports always are. */
-function portLive(needsContactor: boolean, bankId: string | null, engaged: Set<string>): boolean {
-  return !needsContactor || (bankId !== null && engaged.has(bankId));
+  return { runW, bankW, bankA: bankW / v, bankId, inverterId, voltageV: v };
 }
 
 export function computeBudget(model: RigModel, graph: CircuitGraph, plan: PlanInput): Budget {
   const mode = findMode(model, plan.modeId);
+  const sol = solveState(model, graph, plan);
   const planned = planLoads(model, plan);
-  const invOn = invertersOn(model, plan, graph);
-  const engaged = engagedContactors(model, graph, planned, invOn);
+  const invOn = new Set(sol.inverterIdsOn);
 
   const loads: LoadBudget[] = [];
   const standby: StandbyItem[] = [];
   for (const p of planned) {
-    const { runW, bankW, bankA, bankId, inverterId } = loadPower(model, graph, p.load);
+    const feed = sol.loads[p.load.id]!;
+    const { runW, bankW, bankA, bankId, voltageV: v } = loadPower(model, graph, p.load, plan);
     const duty = (p.load.dutyCyclePct ?? 100) / 100;
-    const lg = graph.loads[p.load.id];
-    const live = portLive(lg?.primary?.needsContactor ?? false, bankId, engaged) && (inverterId === null || invOn.has(inverterId));
+    const live = feed.powered && feed.bankShares.length > 0;
     const standbyW = live ? p.load.standbyW ?? 0 : 0;
-    // An AC load cannot run while its inverter is off.
-    const runs = p.on && (inverterId === null || invOn.has(inverterId));
+    const runs = p.on && live;
     const runWh = runs ? bankW * duty * p.hoursPerDay : 0;
     const standbyWh = standbyW * (24 - p.hoursPerDay);
-    const v = feedV(model, bankId);
     loads.push({
       loadId: p.load.id,
       name: p.load.name,
       on: p.on,
+      powered: feed.powered,
       bankId,
+      bankShares: feed.bankShares,
       hoursPerDay: p.hoursPerDay,
       runW,
       bankW,
@@ -190,52 +142,57 @@ export function computeBudget(model: RigModel, graph: CircuitGraph, plan: PlanIn
       whPerDay: runWh + standbyWh,
       ahPerDay: (runWh + standbyWh) / v,
       how: how(
-        "Wh/day = P_bank × duty × hours + P_standby × (24 − hours); P_bank = P / η_inverter for AC",
-        { runW: r(runW), bankW: r(bankW), dutyCyclePct: duty * 100, hoursPerDay: p.hoursPerDay, standbyW, bankNominalV: v },
+        "Wh/day = P_bank × duty × hours + P_standby × (24 − hours); P_bank = P / η_inverter for AC; split between paralleled banks by share",
+        { runW: r(runW), bankW: r(bankW), dutyCyclePct: duty * 100, hoursPerDay: p.hoursPerDay, standbyW, bankNominalV: v, banks: feed.bankShares.map((s) => `${s.bankId} ${r(100 * s.share, 1)} %`).join(", ") || "none" },
+        feed.powered ? undefined : "Not powered in the present switch positions.",
       ),
     });
     if (standbyWh > 0) {
-      standby.push({ kind: "load-standby", id: p.load.id, name: `${p.load.name} (standby)`, bankId, w: standbyW, whPerDay: standbyWh });
+      standby.push({ kind: "load-standby", id: p.load.id, name: `${p.load.name} (standby)`, bankId, bankShares: feed.bankShares, w: standbyW, whPerDay: standbyWh });
     }
   }
   for (const b of model.banks) {
-    standby.push({ kind: "bank-always", id: b.id, name: `${b.name} electronics`, bankId: b.id, w: b.standbyAlwaysW, whPerDay: b.standbyAlwaysW * 24 });
-    if (engaged.has(b.id) && b.standbyContactorW > 0) {
-      standby.push({ kind: "bank-contactor", id: b.id, name: `${b.name} load contactor`, bankId: b.id, w: b.standbyContactorW, whPerDay: b.standbyContactorW * 24 });
-    }
+    const st = sol.bms[b.id]!;
+    const own = [{ bankId: b.id, portId: b.ports[0]!.id, share: 1 }];
+    if (b.bms) standby.push({ kind: "bank-bms", id: b.id, name: `${b.bms.name} (${st.stateName.toLowerCase()})`, bankId: b.id, bankShares: own, w: st.standbyW, whPerDay: st.standbyW * 24 });
   }
   for (const inv of model.inverters) {
-    const f = graph.inverters[inv.id];
-    const bankId = f?.bankId ?? null;
-    if (invOn.has(inv.id)) {
-      standby.push({ kind: "inverter-idle", id: inv.id, name: `${inv.name} idle`, bankId, w: inv.idleW, whPerDay: inv.idleW * 24 });
-    } else if ((inv.offW ?? 0) > 0 && portLive(f?.needsContactor ?? false, bankId, engaged)) {
-      standby.push({ kind: "inverter-off", id: inv.id, name: `${inv.name} (off)`, bankId, w: inv.offW ?? 0, whPerDay: (inv.offW ?? 0) * 24 });
+    const f = sol.inverters[inv.id]!;
+    const bankId = mainBankId(f.bankShares);
+    const live = f.powered && f.bankShares.length > 0;
+    if (invOn.has(inv.id) && live) {
+      standby.push({ kind: "inverter-idle", id: inv.id, name: `${inv.name} idle`, bankId, bankShares: f.bankShares, w: inv.idleW, whPerDay: inv.idleW * 24 });
+    } else if (!invOn.has(inv.id) && (inv.offW ?? 0) > 0 && live) {
+      standby.push({ kind: "inverter-off", id: inv.id, name: `${inv.name} (off)`, bankId, bankShares: f.bankShares, w: inv.offW ?? 0, whPerDay: (inv.offW ?? 0) * 24 });
     }
   }
 
   const loadWhPerDay = loads.reduce((s, l) => s + l.runWhPerDay, 0);
   const standbyWhPerDay = standby.reduce((s, x) => s + x.whPerDay, 0);
   const totalWhPerDay = loadWhPerDay + standbyWhPerDay;
+  const shareOf = (shares: BankShare[], bankId: string) => shares.find((s) => s.bankId === bankId)?.share ?? 0;
 
   const banks: BankBudget[] = model.banks.map((b) => {
     const v = bankNominalV(b);
-    const lw = loads.filter((l) => l.bankId === b.id).reduce((s, l) => s + l.runWhPerDay, 0);
-    const sw = standby.filter((x) => x.bankId === b.id).reduce((s, x) => s + x.whPerDay, 0);
+    const lw = loads.reduce((s, l) => s + l.runWhPerDay * shareOf(l.bankShares, b.id), 0);
+    const sw = standby.reduce((s, x) => s + x.whPerDay * shareOf(x.bankShares, b.id), 0);
+    const st = sol.bms[b.id]!;
+    const resting = b.bms?.states[0]!.livePorts ?? [];
     return {
-      bankId: b.id, name: b.name, nominalV: v, contactorEngaged: engaged.has(b.id),
+      bankId: b.id, name: b.name, nominalV: v, bmsStateId: st.stateId, bmsStateName: st.stateName,
+      contactorEngaged: !!b.bms && st.livePorts.some((p) => !resting.includes(p)),
       loadWhPerDay: lw, standbyWhPerDay: sw, whPerDay: lw + sw, ahPerDay: (lw + sw) / v, averageW: (lw + sw) / 24,
     };
   });
 
   const buses = model.buses.map((bus) => {
-    const ids = new Set(graph.loadsByBus[bus.id] ?? []);
-    const on = loads.filter((l) => ids.has(l.loadId));
+    const net = sol.nets.find((n) => n.nodes.includes(`bus:${bus.id}`));
+    const on = loads.filter((l) => sol.loads[l.loadId]?.netId === net?.id && net !== undefined && graph.paths.loads[l.loadId]?.some((p) => p.via.some((v) => v.kind === "bus" && v.id === bus.id)));
     return {
       busId: bus.id,
       name: bus.name,
-      runningW: on.filter((l) => l.on).reduce((s, l) => s + l.bankW, 0),
-      runningA: on.filter((l) => l.on).reduce((s, l) => s + l.bankA, 0),
+      runningW: on.filter((l) => l.on && l.powered).reduce((s, l) => s + l.bankW, 0),
+      runningA: on.filter((l) => l.on && l.powered).reduce((s, l) => s + l.bankA, 0),
       whPerDay: on.reduce((s, l) => s + l.whPerDay, 0),
     };
   });
@@ -243,6 +200,7 @@ export function computeBudget(model: RigModel, graph: CircuitGraph, plan: PlanIn
   return {
     modeId: mode.id,
     modeName: mode.name,
+    solution: sol,
     loads,
     buses,
     standby,
@@ -252,7 +210,7 @@ export function computeBudget(model: RigModel, graph: CircuitGraph, plan: PlanIn
     totalWhPerDay,
     standbySharePct: totalWhPerDay > 0 ? (100 * standbyWhPerDay) / totalWhPerDay : 0,
     how: how(
-      "day = Σ loads (P × duty × hours) + Σ standby (W × hours); standby share = standby / day",
+      "day = Σ loads (P × duty × hours) + Σ standby (W × hours, BMS by its state); a bank's part = Σ share × Wh",
       { loadWhPerDay: r(loadWhPerDay, 1), standbyWhPerDay: r(standbyWhPerDay, 1), mode: mode.name },
     ),
   };
@@ -266,16 +224,18 @@ export const PROFILE_SLOTS = 288;
  * the sum over slots × 5 min equals the budget's Wh/day per bank.
  */
 export function drawProfiles(model: RigModel, graph: CircuitGraph, budget: Budget, plan: PlanInput): Map<string, Float64Array> {
+  void graph;
   const profiles = new Map<string, Float64Array>();
   for (const b of model.banks) profiles.set(b.id, new Float64Array(PROFILE_SLOTS));
   const planned = planLoads(model, plan);
   const slotH = 24 / PROFILE_SLOTS;
   const constant = new Map<string, number>();
-  const addConstant = (bankId: string, w: number) => constant.set(bankId, (constant.get(bankId) ?? 0) + w);
+  const addConstant = (shares: BankShare[], w: number) => {
+    for (const s of shares) constant.set(s.bankId, (constant.get(s.bankId) ?? 0) + w * s.share);
+  };
   budget.loads.forEach((lb, i) => {
     const p = planned[i]!;
-    const prof = lb.bankId ? profiles.get(lb.bankId) : undefined;
-    if (!prof || !lb.bankId) return;
+    if (lb.bankShares.length === 0) return;
     if (lb.runWhPerDay > 0 && p.windows) {
       // Slots whose midpoint lies in a window.
       const inside = new Uint8Array(PROFILE_SLOTS);
@@ -290,16 +250,19 @@ export function drawProfiles(model: RigModel, graph: CircuitGraph, budget: Budge
       }
       if (count > 0) {
         const w = lb.runWhPerDay / (count * slotH);
-        for (let s = 0; s < PROFILE_SLOTS; s++) if (inside[s]) prof[s]! += w;
-        addConstant(lb.bankId, lb.standbyWhPerDay / 24);
+        for (const sh of lb.bankShares) {
+          const prof = profiles.get(sh.bankId)!;
+          for (let s = 0; s < PROFILE_SLOTS; s++) if (inside[s]) prof[s]! += w * sh.share;
+        }
+        addConstant(lb.bankShares, lb.standbyWhPerDay / 24);
         return;
       }
     }
-    addConstant(lb.bankId, (lb.runWhPerDay + lb.standbyWhPerDay) / 24);
+    addConstant(lb.bankShares, (lb.runWhPerDay + lb.standbyWhPerDay) / 24);
   });
   for (const x of budget.standby) {
-    if (x.kind === "load-standby" || !x.bankId) continue;
-    addConstant(x.bankId, x.w);
+    if (x.kind === "load-standby") continue;
+    addConstant(x.bankShares, x.w);
   }
   for (const [bankId, w] of constant) {
     const prof = profiles.get(bankId);

@@ -1,6 +1,6 @@
 import { describe, expect, it } from "vitest";
 import { largeRig, LARGE_RIG_COUNTS } from "../../tests/fixtures/large-rig";
-import { handleProjectionRequest } from "./api";
+import { handleProjectionRequest } from "./api-test-helper";
 import { validateModel } from "./model";
 
 describe("the benchmark's large rig", () => {

@@ -13,6 +13,10 @@
  *   each must be in for the circuit to conduct) and its cable.
  * - A changeover (three-way) switch is one switch with several positions, referenced by two
  *   or more circuits that feed the same bus, each requiring a different position.
+ * - Version 2: charge sources reach a bank only through circuits (source → bus or bank port);
+ *   a bank's BMS has states (which ports are live, standby W each) chosen by switch positions;
+ *   protections, switches, BMS ports and terminations may carry a resistance (mΩ); every
+ *   switch may give its normal position. See DEVELOPERS.md, "Rig model version 2".
  * - Times of day are local to the rig's IANA time zone, in decimal hours 0–24.
  *
  * The schema deliberately uses no transforms or refinements so that it converts to JSON
@@ -20,7 +24,7 @@
  */
 import { z } from "zod";
 
-export const SCHEMA_VERSION = 1 as const;
+export const SCHEMA_VERSION = 2 as const;
 
 const id = z.string().min(1).max(100);
 const name = z.string().min(1).max(200);
@@ -38,6 +42,30 @@ export const timeWindowSchema = z.object({
 });
 export type TimeWindow = z.infer<typeof timeWindowSchema>;
 
+/* ------------------------------------------------------------------- BMS */
+
+export const bmsStateSchema = z.object({
+  /** e.g. "asleep", "on", "engaged". */
+  id,
+  name,
+  /** Standby draw of the bank's electronics in this state (the whole draw, not an extra). */
+  standbyW: nonNeg,
+  /** Ports that conduct in this state. */
+  livePorts: z.array(id).max(4),
+  /** Switch positions that put the BMS in this state (all must hold). */
+  requires: z.array(z.object({ switchId: id, position: z.string().min(1).max(40) })).max(8),
+});
+export type BmsState = z.infer<typeof bmsStateSchema>;
+
+export const bmsSchema = z.object({
+  name,
+  location: z.string().max(200).optional(),
+  /** From the resting state (first, no requirements) up: the BMS is in the LAST state whose
+   * requirements all hold. */
+  states: z.array(bmsStateSchema).min(1).max(6),
+});
+export type Bms = z.infer<typeof bmsSchema>;
+
 /* ------------------------------------------------------------------ banks */
 
 export const bankPortSchema = z.object({
@@ -47,8 +75,14 @@ export const bankPortSchema = z.object({
   role: z.enum(["common", "load", "charge"]),
   /** The BMS (or a low-voltage disconnect) opens this port at the cutoff. */
   lowVoltageProtected: z.boolean(),
-  /** Drawing through this port needs the bank's load contactor/relay engaged. */
+  /** The BMS stops charge current through this port at its limits (full, cold, cell high).
+   * A lithium bank's port without it is a backdoor when charge current can reach it. */
+  chargeProtected: z.boolean(),
+  /** The port switches through the BMS's load contactor/relay (live only in BMS states that
+   * list it; resistance default of a contactor). */
   contactor: z.boolean(),
+  /** Resistance of the BMS switch in this port (contactor or MOSFETs), mΩ; default per kind. */
+  resistanceMOhm: nonNeg.optional(),
 });
 export type BankPort = z.infer<typeof bankPortSchema>;
 
@@ -73,10 +107,11 @@ export const bankSchema = z.object({
   peukertExponent: z.number().finite().min(1).max(2).optional(),
   /** Coulombic/energy charge efficiency; default per chemistry when absent. */
   chargeEfficiencyPct: z.number().finite().min(50).max(100).optional(),
-  /** Standby draw of the bank's own electronics that never stops. */
-  standbyAlwaysW: nonNeg,
-  /** Extra standby draw while the load contactor/relay is engaged. */
-  standbyContactorW: nonNeg,
+  /** Internal resistance of the whole bank, mΩ (maker's datasheet). Used to split a shared
+   * bus's current between paralleled banks; by capacity when any bank on the bus lacks it. */
+  internalResistanceMOhm: z.number().finite().positive().max(10000).optional(),
+  /** The bank's BMS or low-voltage disconnect; absent: no electronics, every port always live. */
+  bms: bmsSchema.optional(),
   /** Present capacity as a % of rated, e.g. from the logbook. Default 100. */
   healthPct: z.number().finite().min(1).max(150).optional(),
   ports: z.array(bankPortSchema).min(1).max(4),
@@ -85,11 +120,10 @@ export type Bank = z.infer<typeof bankSchema>;
 
 /* ---------------------------------------------------------- charge sources */
 
+/** A source's output reaches banks through the circuits that start at it (version 2). */
 const sourceBase = {
   id,
   name,
-  /** The bank this source charges. */
-  bankId: id,
 };
 
 export const solarSourceSchema = z.object({
@@ -161,10 +195,20 @@ export type Bus = z.infer<typeof busSchema>;
 export const switchSchema = z.object({
   id,
   name,
-  /** changeover: a three-way (or more) selector; positions name its settings. */
-  kind: z.enum(["switch", "disconnect", "relay", "enable", "changeover"]),
-  /** Positions in order, e.g. ["off", "on"] or ["off", "house", "starter"]. */
+  /** changeover: a three-way (or more) selector; positions name its settings.
+   * enable/reset: BMS controls (they set BMS states and carry no load current). */
+  kind: z.enum(["switch", "disconnect", "relay", "enable", "reset", "changeover"]),
+  /** Positions in order, e.g. ["off", "on"] or ["off", "house", "starter"]. The "off" position
+   * (or the first) is where "all off" puts it. */
   positions: z.array(z.string().min(1).max(40)).min(2).max(6),
+  /** Where it normally stands when nobody has recorded a position (e.g. a breaker panel
+   * switch that is always on). Absent: it follows the loads switched on (load switches,
+   * enables), except a changeover, which then has no position (an audit finding). */
+  normalPosition: z.string().min(1).max(40).optional(),
+  /** A push button (reset): its position in the rig state records that it was operated. */
+  momentary: z.boolean().optional(),
+  /** Contact resistance when closed, mΩ; default per kind (app/engine/resistance.ts). */
+  resistanceMOhm: nonNeg.optional(),
   /** Where a person finds it ("under the passenger seat"). */
   location: z.string().max(200).optional(),
 });
@@ -175,6 +219,8 @@ export const protectionSchema = z.object({
   name,
   kind: z.enum(["fuse", "breaker"]),
   ratingA: z.number().finite().positive(),
+  /** Cold resistance, mΩ; default from the rating (app/engine/resistance.ts). */
+  resistanceMOhm: nonNeg.optional(),
   location: z.string().max(200).optional(),
 });
 export type Protection = z.infer<typeof protectionSchema>;
@@ -230,6 +276,10 @@ export const circuitSchema = z.object({
   /** In the order a person meets them from the supply side. */
   switches: z.array(switchSettingSchema).max(8),
   cable: cableSchema.optional(),
+  /** Crimped or bolted terminations in the circuit, both conductors (default 4). */
+  terminations: z.number().int().min(0).max(40).optional(),
+  /** Resistance of one termination, mΩ (default app/engine/resistance.ts). */
+  terminationMOhm: nonNeg.optional(),
   /** Voltage-drop class: critical 3 %, normal 10 % (marine practice). */
   criticality: z.enum(["critical", "normal"]),
 });
@@ -311,20 +361,39 @@ export type RigModel = z.infer<typeof rigModelSchema>;
 /* ---------------------------------------------------------- migration */
 
 /**
- * Upgrade a stored document to the current schema version. Version 0 is the unversioned
- * early draft format: it had no `schemaVersion`, gave a bank a single `nominalV` for the
- * whole bank instead of per-battery voltage and series count, and had no bank ports.
+ * Upgrade a stored document to the current schema version, step by step (0 → 1 → 2).
  * Unknown future versions are returned unchanged (validation will then reject them).
+ *
+ * Version 0 is the unversioned early draft format: a bank had one `nominalV` for the whole
+ * bank instead of per-battery voltage and series count, and no bank ports.
+ *
+ * Version 1 → 2 (see DEVELOPERS.md):
+ * - a source's `bankId` becomes a circuit source → bank port (the charge port, else the common
+ *   port) unless a circuit from that source already exists;
+ * - a bank's `standbyAlwaysW` / `standbyContactorW` become BMS states: "on" (ports without a
+ *   contactor, the always-on draw) and, with a contactor port, "engaged" (every port, both
+ *   draws). "Engaged" requires the enable switches found on the contactor port's circuits; where
+ *   there is none, a new enable switch "<bank> load output" is added. Version 1 inferred the
+ *   contactor from the loads on; v2 resolves an unrecorded enable the same way (it follows the
+ *   loads), so budgets are unchanged;
+ * - ports get `chargeProtected` (charge and LiFePO4 common ports yes, load ports no);
+ * - a changeover gets as its normal position the one version 1 assumed (the side fed from a
+ *   house bank, else its first position that is not "off"), so runways are unchanged; the
+ *   owner should confirm it.
  */
 export function migrateModel(doc: unknown): unknown {
   if (!isRecord(doc)) return doc;
-  const version = doc.schemaVersion ?? 0;
-  if (version === SCHEMA_VERSION) return doc;
-  if (version !== 0) return doc;
+  let out: Record<string, unknown> = doc;
+  if ((out.schemaVersion ?? 0) === 0) out = migrate0to1(out);
+  if (out.schemaVersion === 1) out = migrate1to2(out);
+  return out;
+}
+
+function migrate0to1(doc: Record<string, unknown>): Record<string, unknown> {
   const banks = Array.isArray(doc.banks) ? doc.banks : [];
   return {
     ...doc,
-    schemaVersion: SCHEMA_VERSION,
+    schemaVersion: 1,
     banks: banks.map((b: unknown) => {
       if (!isRecord(b)) return b;
       const { nominalV, ...rest } = b;
@@ -342,6 +411,121 @@ export function migrateModel(doc: unknown): unknown {
       return out;
     }),
   };
+}
+
+const arr = (v: unknown): unknown[] => (Array.isArray(v) ? v : []);
+
+function migrate1to2(doc: Record<string, unknown>): Record<string, unknown> {
+  const circuits = arr(doc.circuits).map((c) => (isRecord(c) ? { ...c } : c)) as Record<string, unknown>[];
+  const switches = arr(doc.switches).map((s) => (isRecord(s) ? { ...s } : s)) as Record<string, unknown>[];
+  const ids = new Set<string>();
+  for (const key of ["banks", "sources", "inverters", "buses", "switches", "protections", "circuits", "loads", "modes"]) {
+    for (const o of arr(doc[key])) if (isRecord(o) && typeof o.id === "string") ids.add(o.id);
+  }
+  const freshId = (base: string): string => {
+    let idOut = base;
+    for (let n = 2; ids.has(idOut); n++) idOut = `${base}-${n}`;
+    ids.add(idOut);
+    return idOut;
+  };
+  const switchById = new Map(switches.filter(isRecord).map((s) => [s.id, s]));
+  const bankById = new Map(arr(doc.banks).filter(isRecord).map((b) => [b.id as string, b]));
+
+  const banks = arr(doc.banks).map((b) => {
+    if (!isRecord(b)) return b;
+    const { standbyAlwaysW, standbyContactorW, ...rest } = b;
+    const always = typeof standbyAlwaysW === "number" ? standbyAlwaysW : 0;
+    const extra = typeof standbyContactorW === "number" ? standbyContactorW : 0;
+    const ports = arr(b.ports).map((p) => {
+      if (!isRecord(p)) return p;
+      const chargeProtected = p.chargeProtected ?? (p.role === "charge" || (p.role === "common" && b.chemistry === "lifepo4"));
+      return { ...p, chargeProtected };
+    }) as Record<string, unknown>[];
+    const contactorPorts = ports.filter((p) => isRecord(p) && p.contactor === true).map((p) => p.id as string);
+    const out: Record<string, unknown> = { ...rest, ports };
+    if (always > 0 || extra > 0 || contactorPorts.length > 0) {
+      const allPorts = ports.map((p) => p.id as string);
+      const states: unknown[] = [
+        { id: "on", name: "On", standbyW: always, livePorts: allPorts.filter((p) => !contactorPorts.includes(p)), requires: [] },
+      ];
+      if (contactorPorts.length > 0) {
+        // The enables on the contactor ports' circuits drive the engaged state.
+        const requires: { switchId: string; position: string }[] = [];
+        for (const c of circuits) {
+          const from = isRecord(c) ? c.from : undefined;
+          if (!isRecord(from) || from.kind !== "bank" || from.id !== b.id || !contactorPorts.includes(from.port as string)) continue;
+          const kept: unknown[] = [];
+          for (const st of arr(c.switches)) {
+            const sw = isRecord(st) ? switchById.get(st.switchId as string) : undefined;
+            if (sw && sw.kind === "enable" && isRecord(st)) {
+              if (!requires.some((r) => r.switchId === st.switchId)) requires.push({ switchId: st.switchId as string, position: st.position as string });
+            } else kept.push(st);
+          }
+          c.switches = kept;
+        }
+        if (requires.length === 0) {
+          const swId = freshId(`${String(b.id)}-load-output`);
+          const sw = { id: swId, name: `${String(b.name)} load output`, kind: "enable", positions: ["off", "on"], location: "On the battery's BMS" };
+          switches.push(sw);
+          switchById.set(swId, sw);
+          requires.push({ switchId: swId, position: "on" });
+        }
+        states.push({ id: "engaged", name: "Load output engaged", standbyW: always + extra, livePorts: allPorts, requires });
+      }
+      out.bms = { name: `${String(b.name)} BMS`, states };
+    }
+    return out;
+  });
+
+  // Sources: bankId → a circuit to the bank's charge (or common) port.
+  const sources = arr(doc.sources).map((s) => {
+    if (!isRecord(s)) return s;
+    const { bankId, ...rest } = s;
+    const wired = circuits.some((c) => isRecord(c) && isRecord(c.from) && c.from.kind === "source" && c.from.id === s.id);
+    const bank = typeof bankId === "string" ? bankById.get(bankId) : undefined;
+    if (!wired && bank) {
+      const ports = arr(bank.ports).filter(isRecord);
+      const port = ports.find((p) => p.role === "charge") ?? ports.find((p) => p.role === "common") ?? ports[0];
+      if (port) {
+        circuits.push({
+          id: freshId(`${String(s.id)}-output`),
+          name: `${String(s.name)} output`,
+          from: { kind: "source", id: s.id },
+          to: { kind: "bank", id: bankId, port: port.id },
+          switches: [],
+          criticality: "normal",
+        });
+      }
+    }
+    return rest;
+  });
+
+  // Changeovers: the position version 1 assumed (the side a house bank feeds).
+  const houseBanks = new Set(arr(doc.banks).filter((b) => isRecord(b) && b.role === "house").map((b) => (b as Record<string, unknown>).id));
+  const incoming = new Map<string, Record<string, unknown>[]>();
+  const keyOf = (ref: unknown): string => (isRecord(ref) ? `${String(ref.kind)}:${String(ref.id)}` : "");
+  for (const c of circuits) if (isRecord(c)) (incoming.get(keyOf(c.to)) ?? incoming.set(keyOf(c.to), []).get(keyOf(c.to))!).push(c);
+  const fromHouse = (c: Record<string, unknown>): boolean => {
+    const seen = new Set<string>();
+    const stack = [c];
+    while (stack.length) {
+      const x = stack.pop()!;
+      if (isRecord(x.from) && x.from.kind === "bank") { if (houseBanks.has(x.from.id)) return true; continue; }
+      const k = keyOf(x.from);
+      if (seen.has(k)) continue;
+      seen.add(k);
+      stack.push(...(incoming.get(k) ?? []));
+    }
+    return false;
+  };
+  for (const sw of switches) {
+    if (!isRecord(sw) || sw.kind !== "changeover" || sw.normalPosition !== undefined) continue;
+    const uses = circuits.filter(isRecord).flatMap((c) => arr(c.switches).filter((x) => isRecord(x) && x.switchId === sw.id).map((x) => ({ c, position: (x as Record<string, unknown>).position as string })));
+    const house = uses.find((u) => fromHouse(u.c));
+    const pos = house?.position ?? arr(sw.positions).find((p) => p !== "off");
+    if (typeof pos === "string") sw.normalPosition = pos;
+  }
+  return { ...doc, schemaVersion: 2, banks, sources, switches, circuits };
 }
 
 function isRecord(v: unknown): v is Record<string, unknown> {
@@ -410,6 +594,11 @@ function checkReferences(m: RigModel): ModelIssue[] {
   const switches = new Map(m.switches.map((x) => [x.id, x]));
   const protections = new Map(m.protections.map((x) => [x.id, x]));
   const loads = new Map(m.loads.map((x) => [x.id, x]));
+  m.switches.forEach((sw, i) => {
+    if (sw.normalPosition !== undefined && !sw.positions.includes(sw.normalPosition)) {
+      issues.push({ path: ["switches", i, "normalPosition"], message: `${sw.name} has no position "${sw.normalPosition}" (has ${sw.positions.join(", ")})` });
+    }
+  });
 
   try {
     new Intl.DateTimeFormat("en-US", { timeZone: m.timeZone });
@@ -427,6 +616,19 @@ function checkReferences(m: RigModel): ModelIssue[] {
     if (roles.includes("common") && b.ports.length > 1) {
       issues.push({ path: ["banks", i, "ports"], message: `${b.name} has a common port and other ports; use either one common port or split load and charge ports` });
     }
+    b.bms?.states.forEach((st, j) => {
+      st.livePorts.forEach((p, k) => {
+        if (!portIds.has(p)) issues.push({ path: ["banks", i, "bms", "states", j, "livePorts", k], message: `${b.name}: BMS state ${st.name} lists unknown port "${p}"` });
+      });
+      st.requires.forEach((rq, k) => {
+        const sw = switches.get(rq.switchId);
+        if (!sw) issues.push({ path: ["banks", i, "bms", "states", j, "requires", k, "switchId"], message: `${b.name}: BMS state ${st.name} needs unknown switch "${rq.switchId}"` });
+        else if (!sw.positions.includes(rq.position)) issues.push({ path: ["banks", i, "bms", "states", j, "requires", k, "position"], message: `${b.name}: switch ${sw.name} has no position "${rq.position}"` });
+      });
+    });
+    if (b.bms && b.bms.states[0]!.requires.length > 0) {
+      issues.push({ path: ["banks", i, "bms", "states", 0, "requires"], message: `${b.name}: the BMS's first state is its resting state and needs no switch` });
+    }
     const nominal = b.batteryNominalV * b.seriesCount;
     if (b.lowVoltageCutoffV >= nominal * 1.15 || b.lowVoltageCutoffV <= nominal * 0.5) {
       issues.push({ path: ["banks", i, "lowVoltageCutoffV"], message: `${b.name}: cutoff ${b.lowVoltageCutoffV} V does not fit a ${nominal} V bank` });
@@ -434,10 +636,11 @@ function checkReferences(m: RigModel): ModelIssue[] {
   });
 
   m.sources.forEach((s, i) => {
-    if (!banks.has(s.bankId)) issues.push({ path: ["sources", i, "bankId"], message: `${s.name} charges unknown bank "${s.bankId}"` });
     if (s.kind !== "solar" && s.supplyBankId !== undefined) {
       if (!banks.has(s.supplyBankId)) issues.push({ path: ["sources", i, "supplyBankId"], message: `${s.name} draws from unknown bank "${s.supplyBankId}"` });
-      else if (s.supplyBankId === s.bankId) issues.push({ path: ["sources", i, "supplyBankId"], message: `${s.name} cannot charge the bank it draws from` });
+      else if (m.circuits.some((c) => c.from.kind === "source" && c.from.id === s.id && c.to.kind === "bank" && c.to.id === s.supplyBankId)) {
+        issues.push({ path: ["sources", i, "supplyBankId"], message: `${s.name} cannot charge the bank it draws from` });
+      }
     }
   });
 

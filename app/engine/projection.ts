@@ -17,6 +17,8 @@ import { how, r, type How } from "./explain";
 import { arrayPowerW, clearSkyComponents, dayOfYear, extraterrestrialIrradianceWm2, interpolateSunCoordinates, sunCoordinates, sunHorizontal, transposeWm2, utcOffsetMinutes, type SunCoordinates } from "./solar";
 import type { CurrentState } from "./state";
 import { inWindow } from "./units";
+import { primaryBank } from "./primary-bank";
+import { carrySocForward, type CarriedSoc } from "./carry-forward";
 
 export interface ProjectionOptions {
   horizonH?: number;
@@ -27,8 +29,10 @@ export interface BankProjection {
   bankId: string;
   name: string;
   startSocPct: number;
-  /** Where the start SoC came from. */
-  startSocFrom: "soc" | "resting-voltage" | "assumed-full";
+  /** Where the start SoC came from ("carried": a reading taken earlier, projected to now). */
+  startSocFrom: "soc" | "resting-voltage" | "assumed-full" | "carried";
+  /** For a carried reading: when it was taken and its value then. */
+  carriedFrom?: { takenAt: string; socPct: number; segments: number };
   startSocConfidence: "high" | "medium" | "low";
   stopSocPct: number;
   /** SoC at each time in `timesMs` (first point = now). */
@@ -84,7 +88,7 @@ export interface Projection {
   timesMs: number[];
   nextSunriseMs: number | null;
   banks: BankProjection[];
-  /** The first house bank's results, for the headline. */
+  /** The primary bank's results (./primary-bank), for the headline. */
   primaryBankId: string;
   budget: Budget;
 }
@@ -133,7 +137,11 @@ const kindOfWindow = (k: ChargerSource["kind"]): TillDawn["nextWindowKind"] =>
 /**
  * Run the projection. The model must be valid and `graph` built from it.
  */
-export function runProjection(model: RigModel, graph: CircuitGraph, state: CurrentState, options: ProjectionOptions = {}): Projection {
+export function runProjection(model: RigModel, graph: CircuitGraph, stateIn: CurrentState, options: ProjectionOptions = {}): Projection {
+  // An SoC read earlier is first carried forward to dateTime through the states in between.
+  const { state, carried } = stateIn.banks.some((b) => b.takenAt !== undefined)
+    ? carrySocForward(model, graph, stateIn, runProjection)
+    : { state: stateIn, carried: [] as CarriedSoc[] };
   const horizonH = options.horizonH ?? 72;
   const stepMin = options.stepMin ?? 5;
   const steps = Math.max(1, Math.round((horizonH * 60) / stepMin));
@@ -172,9 +180,14 @@ export function runProjection(model: RigModel, graph: CircuitGraph, state: Curre
   const E0 = [...E];
   const prof = model.banks.map((b) => profiles.get(b.id)!);
 
+  // Each source's current goes to the banks on its net, by the net's shares (./solution).
+  const sol = budget.solution;
+  const sharesOf = (id: string) => (sol.sources[id]?.bankShares ?? []).map((x) => ({ i: bankIndex.get(x.bankId)!, share: x.share }));
   const solar = model.sources.filter((s): s is SolarSource => s.kind === "solar")
-    .filter((s) => modeSources.get(s.id)?.enabled !== false && bankIndex.has(s.bankId));
-  const chargers = model.sources.filter((s): s is ChargerSource => s.kind !== "solar" && bankIndex.has(s.bankId));
+    .filter((s) => modeSources.get(s.id)?.enabled !== false && sharesOf(s.id).length > 0);
+  const chargers = model.sources.filter((s): s is ChargerSource => s.kind !== "solar" && sharesOf(s.id).length > 0);
+  const chargerShares = chargers.map((c) => sharesOf(c.id));
+  const chargerV = chargers.map((c) => sol.nets[sol.sources[c.id]!.netId!]!.voltageV);
 
   const soc: number[][] = model.banks.map(() => new Array<number>(steps + 1));
   const timesMs = new Array<number>(steps + 1);
@@ -200,7 +213,8 @@ export function runProjection(model: RigModel, graph: CircuitGraph, state: Curre
   const scratch: SunCoordinates = { alphaRad: 0, deltaRad: 0, distanceAu: 0, eqEquinoxDeg: 0 };
   const doyStart = dayOfYear(startMs);
   const e0ByDay: number[] = [];
-  const solarBank = solar.map((src) => bankIndex.get(src.bankId)!);
+  const solarShares = solar.map((src) => sharesOf(src.id));
+  const solarV = solar.map((src) => sol.nets[sol.sources[src.id]!.netId!]!.voltageV);
   const wf = Math.min(1, Math.max(0, weather));
   for (let s = 0; s < steps; s++) {
     const t0 = startMs + s * stepMs;
@@ -225,19 +239,22 @@ export function runProjection(model: RigModel, graph: CircuitGraph, state: Curre
       const comp = clearSkyComponents(sun.zenithDeg, e0);
       for (let j = 0; j < solar.length; j++) {
         const src = solar[j]!;
-        const bi = solarBank[j]!;
         const poa = transposeWm2(comp, sun.zenithDeg, sun.azimuthDeg, src.tiltDeg, src.azimuthDeg) * wf;
-        const w = arrayPowerW(src, poa, ambientC, V[bi]!);
-        srcW[bi] = srcW[bi]! + w;
-        if (w > 0) kindAtStep[bi] = "sun";
+        const w = arrayPowerW(src, poa, ambientC, solarV[j]!);
+        for (const { i: bi, share } of solarShares[j]!) {
+          srcW[bi] = srcW[bi]! + w * share;
+          if (w > 0) kindAtStep[bi] = "sun";
+        }
       }
     }
-    for (const src of chargers) {
+    for (let j = 0; j < chargers.length; j++) {
+      const src = chargers[j]!;
       if (!sourceActive(src, modeSources, hour)) continue;
-      const bi = bankIndex.get(src.bankId)!;
-      const w = src.ratedA * V[bi]!;
-      srcW[bi] = srcW[bi]! + w;
-      kindAtStep[bi] = kindOfWindow(src.kind);
+      const w = src.ratedA * chargerV[j]!;
+      for (const { i: bi, share } of chargerShares[j]!) {
+        srcW[bi] = srcW[bi]! + w * share;
+        kindAtStep[bi] = kindOfWindow(src.kind);
+      }
       if (src.kind === "charger" && src.supplyBankId !== undefined) {
         const si = bankIndex.get(src.supplyBankId);
         if (si !== undefined) supplyDrawW[si] = supplyDrawW[si]! + w / ((src.efficiencyPct ?? 90) / 100);
@@ -312,7 +329,8 @@ export function runProjection(model: RigModel, graph: CircuitGraph, state: Curre
       bankId: b.id,
       name: b.name,
       startSocPct: start[i]!.socPct,
-      startSocFrom: start[i]!.from,
+      startSocFrom: carried.some((c) => c.bankId === b.id) ? "carried" : start[i]!.from,
+      ...(() => { const c = carried.find((x) => x.bankId === b.id); return c ? { carriedFrom: { takenAt: c.takenAt, socPct: c.fromSocPct, segments: c.segments } } : {}; })(),
       startSocConfidence: start[i]!.confidence,
       stopSocPct: stopSoc[i]!,
       socPct: curve,
@@ -344,7 +362,7 @@ export function runProjection(model: RigModel, graph: CircuitGraph, state: Curre
       ),
     };
   });
-  const primary = model.banks.find((b) => b.role === "house") ?? model.banks[0]!;
+  const primary = primaryBank(model);
   return {
     startMs,
     stepMin,

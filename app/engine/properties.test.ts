@@ -4,7 +4,7 @@
 import fc from "fast-check";
 import { describe, expect, it } from "vitest";
 import { juniperModel } from "../../tests/fixtures/juniper";
-import { handleProjectionRequest } from "./api";
+import { handleProjectionRequest } from "./api-test-helper";
 import { buildCircuitGraph } from "./circuit-graph";
 import { validateModel, type Chemistry, type RigModel } from "./model";
 import { runProjection } from "./projection";
@@ -61,21 +61,24 @@ function buildRig(p: Params, loadScale = 1): RigModel {
   const lead = p.chemistry !== "lifepo4";
   const batteryV = lead ? 12 : 12.8;
   return {
-    schemaVersion: 1, id: "prop", name: "Random rig", home: { latDeg: p.latDeg, lonDeg: p.lonDeg }, timeZone: "UTC",
+    schemaVersion: 2, id: "prop", name: "Random rig", home: { latDeg: p.latDeg, lonDeg: p.lonDeg }, timeZone: "UTC",
     banks: [{
       id: "b", name: "Bank", role: "house", chemistry: p.chemistry, ratedAh: p.ratedAh, batteryNominalV: batteryV,
       seriesCount: p.series, parallelCount: p.parallel, usableFloorSocPct: p.floorPct,
-      lowVoltageCutoffV: (lead ? 11.5 : 11) * p.series, standbyAlwaysW: 0.5, standbyContactorW: 2,
-      ports: [{ id: "load", name: "Load", role: "load", lowVoltageProtected: true, contactor: true }, { id: "charge", name: "Charge", role: "charge", lowVoltageProtected: false, contactor: false }],
+      lowVoltageCutoffV: (lead ? 11.5 : 11) * p.series,
+      bms: { name: "BMS", states: [{ id: "on", name: "On", standbyW: 0.5, livePorts: ["charge"], requires: [] }, { id: "engaged", name: "Engaged", standbyW: 2.5, livePorts: ["load", "charge"], requires: [{ switchId: "en", position: "on" }] }] },
+      ports: [{ id: "load", name: "Load", role: "load", lowVoltageProtected: true, chargeProtected: false, contactor: true }, { id: "charge", name: "Charge", role: "charge", lowVoltageProtected: false, chargeProtected: true, contactor: false }],
     }],
     sources: [
-      ...(p.solarWp > 0 ? [{ id: "pv", name: "PV", kind: "solar" as const, bankId: "b", peakW: p.solarWp, tiltDeg: p.tiltDeg, azimuthDeg: p.azimuthDeg % 360, controller: "mppt" as const, tempCoeffPctPerC: p.tempCoeff }] : []),
-      ...(p.shore ? [{ id: "shore", name: "Shore", kind: "shore" as const, bankId: "b", ratedA: 15 }] : []),
+      ...(p.solarWp > 0 ? [{ id: "pv", name: "PV", kind: "solar" as const, peakW: p.solarWp, tiltDeg: p.tiltDeg, azimuthDeg: p.azimuthDeg % 360, controller: "mppt" as const, tempCoeffPctPerC: p.tempCoeff }] : []),
+      ...(p.shore ? [{ id: "shore", name: "Shore", kind: "shore" as const, ratedA: 15 }] : []),
     ],
     inverters: [{ id: "inv", name: "Inverter", ratedW: 2000, efficiencyPct: 88, idleW: 15, acNominalV: 230 }],
     buses: [{ id: "dc", name: "DC", current: "dc" }, { id: "ac", name: "AC", current: "ac" }, { id: "cb", name: "Charge bus", current: "dc" }],
-    switches: [], protections: [],
+    switches: [{ id: "en", name: "BMS enable", kind: "enable", positions: ["off", "on"] }], protections: [],
     circuits: [
+      ...(p.solarWp > 0 ? [{ id: "pvc", name: "PV", from: { kind: "source" as const, id: "pv" }, to: { kind: "bank" as const, id: "b", port: "charge" }, switches: [], criticality: "normal" as const }] : []),
+      ...(p.shore ? [{ id: "shc", name: "Shore", from: { kind: "source" as const, id: "shore" }, to: { kind: "bank" as const, id: "b", port: "charge" }, switches: [], criticality: "normal" as const }] : []),
       { id: "feed", name: "Feed", from: { kind: "bank", id: "b", port: "load" }, to: { kind: "bus", id: "dc" }, switches: [], criticality: "critical" },
       { id: "cfeed", name: "Charge feed", from: { kind: "bank", id: "b", port: "charge" }, to: { kind: "bus", id: "cb" }, switches: [], criticality: "critical" },
       { id: "invc", name: "Inverter", from: { kind: "bus", id: "dc" }, to: { kind: "inverter", id: "inv" }, switches: [], criticality: "critical" },

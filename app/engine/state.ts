@@ -12,6 +12,9 @@ export const bankStateSchema = z.object({
   socPct: z.number().finite().min(0).max(100).optional(),
   /** Resting (open-circuit) bank voltage, read after the bank has rested. */
   restingV: z.number().finite().positive().max(100).optional(),
+  /** When the SoC or voltage was read; the projection carries it forward to `dateTime`
+   * (./carry-forward). Absent: it is taken as read at `dateTime`. */
+  takenAt: z.iso.datetime({ offset: true }).optional(),
   /** Battery temperature, for the lead-acid capacity correction. */
   temperatureC: z.number().finite().min(-40).max(70).optional(),
 });
@@ -27,6 +30,14 @@ export const currentStateSchema = z.object({
   inverterIdsOn: z.array(id).max(10).optional(),
   /** Positions of switches that choose between feeds (e.g. a changeover). */
   switchPositions: z.record(z.string(), z.string()).optional(),
+  /** What changed between an old SoC reading and now (switch history), oldest first; each
+   * entry holds from `at` on. Used to carry an old reading forward (./carry-forward). */
+  history: z.array(z.object({
+    at: z.iso.datetime({ offset: true }),
+    modeId: id.optional(),
+    loadsOn: z.array(id).max(500).optional(),
+    switchPositions: z.record(z.string(), z.string()).optional(),
+  })).max(200).optional(),
   /** Where the rig is now; absent = its home location. */
   location: z
     .object({

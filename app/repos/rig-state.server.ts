@@ -52,6 +52,7 @@ export function rowToState(row: Row, names: Map<string, string>): RigState {
             takenAt: row.socTakenAt.toISOString(),
           }
         : null,
+    ...(row.bankSocs && Object.keys(row.bankSocs).length ? { bankSocs: row.bankSocs } : {}),
     place: place.success ? place.data : base.place,
     weather: weather.success ? weather.data : base.weather,
     fieldTimes,
@@ -81,7 +82,7 @@ function fieldsOf(change: StateChange, before: Row): string[] {
     case "mode":
       return ["mode", ...Object.keys(before.switches).map((id) => `load:${id}`)];
     case "soc":
-      return ["soc"];
+      return [change.bankId ? `soc:${change.bankId}` : "soc"];
     case "place":
       return [...(change.place ? ["place"] : []), ...(change.weather ? ["weather"] : [])];
   }
@@ -155,7 +156,10 @@ export async function writeRigState(db: Db, input: WriteInput): Promise<StateWri
         break;
       }
       case "soc":
-        if (wins.has("soc")) {
+        if (change.bankId !== undefined) {
+          // Another bank's SoC (the primary bank's stays in the soc_* columns).
+          if (wins.has(`soc:${change.bankId}`)) next.bankSocs = { ...(before.bankSocs ?? {}), [change.bankId]: change.soc };
+        } else if (wins.has("soc")) {
           next.socPct = change.soc.socPct;
           next.socSource = change.soc.source;
           next.socRestingV = change.soc.restingV ?? null;

@@ -2,11 +2,13 @@ import type { Route } from "./+types/api.rigs.$rigId.state";
 import { protectedAction } from "~/auth/csrf.server";
 import { requireRigRole } from "~/auth/guards.server";
 import { getDb } from "~/db/db.server";
+import { buildCircuitGraph } from "~/engine/circuit-graph";
+import { solveState } from "~/engine/solution";
 import { apiError, badRequest, issuesOf, readJson } from "~/lib/http";
 import { writeRigStateAndLog } from "~/repos/logged-writes.server";
-import { requireAsBuiltModel } from "~/repos/models.server";
+import { getAsBuiltModel, requireAsBuiltModel } from "~/repos/models.server";
 import { getLatestReading, getRigState } from "~/repos/rig-state.server";
-import { checkChangeAgainstModel, stateWriteSchema } from "~/schemas/rig-state";
+import { checkChangeAgainstModel, effectiveLoadsOn, stateWriteSchema } from "~/schemas/rig-state";
 import { requestEvaluation } from "~/alerts/queue.server";
 import { getEnv } from "~/env.server";
 
@@ -16,8 +18,16 @@ const noStore = { "cache-control": "private, no-store" };
 export async function loader({ request, params }: Route.LoaderArgs) {
   const db = getDb();
   const access = await requireRigRole(request, params.rigId, "guest", db);
-  const [state, latestReading] = await Promise.all([getRigState(db, access.rig.id), getLatestReading(db, access.rig.id)]);
-  return Response.json({ state, latestReading, role: access.role }, { headers: noStore });
+  const [state, latestReading, asBuilt] = await Promise.all([getRigState(db, access.rig.id), getLatestReading(db, access.rig.id), getAsBuiltModel(db, access.rig.id)]);
+  // Every switch's position now: recorded ones, and the rest as the engine resolves them
+  // (normal position, following the loads on, or off; a changeover with none is "unknown").
+  const switchPositions = asBuilt
+    ? Object.values(solveState(asBuilt.model, buildCircuitGraph(asBuilt.model, state.positions), {
+        modeId: state.modeId ?? asBuilt.model.modes[0]!.id,
+        loadsOn: [...effectiveLoadsOn(asBuilt.model, state.modeId, state.switches)],
+      }).positions)
+    : [];
+  return Response.json({ state, switchPositions, latestReading, role: access.role }, { headers: noStore });
 }
 
 /**

@@ -2,7 +2,9 @@
  * The shared state of a rig "now" (switches, mode, SoC entry, place, weather) as the API sends
  * it and as the phone keeps it. One schema for the API routes, the Now screen and the offline
  * store. The engine's own input (`app/engine/state.ts`) is derived from it by
- * `toEngineState` in `app/components/now/now-model.ts`.
+ * `toEngineState` in `app/components/now/now-model.ts`. Switch positions not recorded here are
+ * resolved by the engine (`resolvePositions` in app/engine/solution.ts): normal position, then
+ * following the loads on, else off; a changeover with neither has no position (a finding).
  */
 import { z } from "zod";
 
@@ -62,6 +64,8 @@ export const rigStateSchema = z.object({
   /** switchId → position, for switches someone has set here; others are taken as needed. */
   positions: z.record(z.string(), z.string()),
   soc: socEntrySchema.nullable(),
+  /** SoC entries of the other banks (bankId → entry); `soc` is the primary bank's. */
+  bankSocs: z.record(z.string(), socEntrySchema).optional(),
   place: placeSchema,
   weather: weatherSchema,
   /** Per field ("load:<id>", "switch:<id>", "mode", "soc", "place"): last change, server time. */
@@ -89,7 +93,8 @@ export const stateChangeSchema = z.discriminatedUnion("kind", [
     positions: z.array(z.object({ switchId: id, position: z.string().min(1).max(40) })).max(50).optional(),
   }),
   z.object({ kind: z.literal("mode"), modeId: id }),
-  z.object({ kind: z.literal("soc"), soc: socEntrySchema }),
+  /** Without bankId: the primary bank's SoC. */
+  z.object({ kind: z.literal("soc"), soc: socEntrySchema, bankId: id.optional() }),
   z.object({ kind: z.literal("place"), place: placeSchema.optional(), weather: weatherSchema.optional() }),
 ]);
 export type StateChange = z.infer<typeof stateChangeSchema>;
@@ -147,6 +152,7 @@ export function applyChange(state: RigState, change: StateChange): RigState {
       // A mode sets every switch at once: per-load overrides are cleared.
       return { ...state, modeId: change.modeId, switches: {} };
     case "soc":
+      if (change.bankId !== undefined) return { ...state, bankSocs: { ...(state.bankSocs ?? {}), [change.bankId]: change.soc } };
       return { ...state, soc: change.soc };
     case "place":
       return { ...state, ...(change.place ? { place: change.place } : {}), ...(change.weather ? { weather: change.weather } : {}) };
@@ -155,7 +161,7 @@ export function applyChange(state: RigState, change: StateChange): RigState {
 
 /** Checks a change's ids against the rig model; answers issues (empty when it fits). */
 export function checkChangeAgainstModel(
-  model: { loads: { id: string }[]; modes: { id: string }[]; switches: { id: string; positions: string[] }[] },
+  model: { loads: { id: string }[]; modes: { id: string }[]; switches: { id: string; positions: string[] }[]; banks?: { id: string }[] },
   change: StateChange,
 ): Array<{ path: (string | number)[]; message: string }> {
   const issues: Array<{ path: (string | number)[]; message: string }> = [];
@@ -176,6 +182,9 @@ export function checkChangeAgainstModel(
   if (change.kind === "mode" && !model.modes.some((m) => m.id === change.modeId)) {
     issues.push({ path: ["change", "modeId"], message: `This rig has no mode "${change.modeId}".` });
   }
+  if (change.kind === "soc" && change.bankId !== undefined && model.banks && !model.banks.some((b) => b.id === change.bankId)) {
+    issues.push({ path: ["change", "bankId"], message: `This rig has no bank "${change.bankId}".` });
+  }
   if (change.kind === "soc") {
     if (change.soc.source === "resting_voltage" && change.soc.restingV === undefined) {
       issues.push({ path: ["change", "soc", "restingV"], message: "Give the resting voltage the SoC was estimated from." });
@@ -187,6 +196,14 @@ export function checkChangeAgainstModel(
     issues.push({ path: ["change"], message: "Give a place, a weather choice or both." });
   }
   return issues;
+}
+
+/** The SoC entry of a bank: `soc` for the primary bank (unless a bank entry is newer), else its own entry. */
+export function socEntryFor(state: RigState, bankId: string, primaryBankId: string): SocEntry | null {
+  const own = state.bankSocs?.[bankId] ?? null;
+  if (bankId !== primaryBankId) return own;
+  if (own && state.soc && Date.parse(own.takenAt) > Date.parse(state.soc.takenAt)) return own;
+  return state.soc ?? own;
 }
 
 /** Loads on: the mode's loads (hours > 0) with per-load overrides (the engine's planLoads rule). */

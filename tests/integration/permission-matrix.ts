@@ -94,6 +94,7 @@ export const permissionMatrix: Record<string, RouteRow> = {
   "routes/api.rigs.$rigId.model.ts": { GET: { expect: members() } },
   "routes/api.rigs.$rigId.state.ts": { GET: { expect: members() }, POST: { expect: crewUp(), json: () => ({}) } },
   "routes/api.rigs.$rigId.modes.ts": { GET: { expect: "notAllowed" }, POST: { expect: ownerOnly(), json: () => ({}) } },
+  "routes/api.rigs.$rigId.compare.ts": { GET: { expect: "notAllowed" }, POST: { expect: members(), json: () => ({}) } },
   // Alerts and devices (issue 13)
   "routes/rig.alerts.tsx": {
     note: "Warn me, own choices and the alert log for every member; rules and device tokens for owners.",

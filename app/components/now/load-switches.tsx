@@ -50,7 +50,8 @@ export function LoadSwitches({
   onChange: (c: StateChange) => void;
 }) {
   const [offer, setOffer] = useState<{ loadId: string; steps: SwitchStep[] } | null>(null);
-  const onSet = new Set(now.engineState.loadsOn ?? []);
+  // Running = switched on and powered in the engine's solution for the present positions.
+  const onSet = new Set(now.projection.budget.loads.filter((l) => l.on && l.powered).map((l) => l.loadId));
   const wantedSet = effectiveLoadsOn(model, now.engineState.modeId, state.switches);
   const budgetById = new Map<string, LoadBudget>(now.projection.budget.loads.map((l) => [l.loadId, l]));
   const groups = groupLoadsByBus(model, now);

@@ -3,11 +3,10 @@ import { describe, expect, test } from "vitest";
 import { renderToString } from "react-dom/server";
 import { MemoryRouter } from "react-router";
 import { juniperModel } from "../../../tests/fixtures/juniper";
-import { buildCircuitGraph } from "~/engine/circuit-graph";
-import { runProjection } from "~/engine/projection";
+import { oneLoadRig } from "~/engine/test-rigs";
 import { emptyRigState, type RigState } from "~/schemas/rig-state";
 import { NowScreen, type NowRole } from "./now-screen";
-import { computeNow, loadCost, toEngineState } from "./now-model";
+import { computeNow, loadCost } from "./now-model";
 import { formatDelta, formatDuration } from "./format";
 
 // An October evening at Juniper's home, 19:30 local (UTC−6).
@@ -38,14 +37,18 @@ function render(state: RigState, role: NowRole = "crew") {
 const text = (html: string) => html.replace(/<!-- -->/g, "").replace(/<[^>]+>/g, " ").replace(/&#x27;/g, "'").replace(/\s+/g, " ");
 
 describe("Now screen text from the engine", () => {
-  test("the runway shown is the engine's runway for the same model and state", () => {
-    const state = stateWith(62);
-    const engine = runProjection(juniperModel, buildCircuitGraph(juniperModel, {}), toEngineState(juniperModel, state, at));
-    const house = engine.banks.find((b) => b.bankId === "house")!;
-    expect(house.runwayH).not.toBeNull();
-    const html = render(state);
-    expect(html).toContain(`data-testid="runway">${formatDuration(house.runwayH)}<`);
-    expect(text(html)).toContain("to the usable floor (15 %)");
+  test("the runway shown is worked by hand: 1,024 Wh usable at 64 W is 16 h", () => {
+    // One 64 W load on a 100 Ah, 12.8 V LiFePO4 bank, no sources: from 100 % to the 20 % floor
+    // is 80 Ah × 12.8 V = 1,024 Wh, and 1,024 Wh / 64 W = 16 h (hand-worked, not from the engine).
+    const model = oneLoadRig({ loadW: 64 });
+    const state = { ...emptyRigState("rig-1"), soc: { socPct: 100, source: "entered" as const, takenAt: new Date(at).toISOString() } };
+    const html = renderToString(
+      <MemoryRouter>
+        <NowScreen rigId="rig-1" rigName="Test rig" model={model} revision={1} state={state} role="crew" latestReading={null} initialNowMs={at} onChange={() => {}} />
+      </MemoryRouter>,
+    );
+    expect(html).toContain(`data-testid="runway">16 h 00 m<`);
+    expect(text(html)).toContain("to the usable floor (20 %)");
   });
 
   test("a bank that reaches the morning sun says it makes it, with the margin", () => {
@@ -93,7 +96,9 @@ describe("Now screen text from the engine", () => {
   test("a load whose switch path is open says it is not running, and the runway counts it off", () => {
     const state = stateWith(62, { positions: { "sw-panel": "off" } });
     const now = computeNow({ model: juniperModel, state, atMs: at });
-    expect(now.engineState.loadsOn).not.toContain("fridge");
+    // The fridge stays wanted on, but with the fuse panel's enable set off it has no power.
+    expect(now.projection.budget.solution.loads.fridge!.powered).toBe(false);
+    expect(now.projection.budget.loads.find((l) => l.loadId === "fridge")!.runWhPerDay).toBe(0);
     expect(text(render(state))).toContain("Not running: Fuse panel enable is off");
   });
 });

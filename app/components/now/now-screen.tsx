@@ -17,6 +17,7 @@ import { LoadSwitches, StandbyList } from "./load-switches";
 import { ModesBar, type ModeEditBody } from "./modes";
 import { PlaceWeather } from "./place-weather";
 import { SocEntryForm } from "./soc-entry";
+import { DawnPlanCard } from "./dawn-plan";
 import { formatA, formatAgo, formatClock, formatDuration, formatPct, formatW } from "./format";
 
 const ProjectionChart = lazy(() => import("./projection-chart"));
@@ -102,6 +103,7 @@ function NowBody({
   canWrite,
 }: NowScreenProps & { now: NowResult; atMs: number; pinned: number | null; setPinned: (ms: number | null) => void; canWrite: boolean }) {
   const [socOpen, setSocOpen] = useState(false);
+  const [socBankId, setSocBankId] = useState<string>(() => (model.banks.find((b) => b.role === "house") ?? model.banks[0]!).id);
   const [hydrated, setHydrated] = useState(false);
   useEffect(() => setHydrated(true), []);
   const bank = now.bank;
@@ -271,6 +273,8 @@ function NowBody({
         </dl>
       </section>
 
+      {hydrated ? <DawnPlanCard model={model} now={now} canWrite={canWrite} onChange={change} /> : null}
+
       <ModesBar
         model={model}
         modeId={mode.id}
@@ -319,17 +323,31 @@ function NowBody({
 
       <Sheet open={socOpen} onClose={() => setSocOpen(false)} title="State of charge">
         {socOpen ? (
+          <div className="space-y-3">
+          {model.banks.length > 1 ? (
+            <fieldset className="flex flex-wrap gap-2">
+              <legend className="mb-1 text-sm text-night-300">Bank</legend>
+              {model.banks.map((b) => (
+                <button key={b.id} type="button" aria-pressed={socBankId === b.id} onClick={() => setSocBankId(b.id)}
+                  className={cn("min-h-11 rounded-xl border px-3", socBankId === b.id ? "border-dawn-400 bg-dawn-500 text-night-950" : "border-night-600")}>
+                  {b.name}
+                </button>
+              ))}
+            </fieldset>
+          ) : null}
           <SocEntryForm
-            bank={now.bankModel}
+            key={socBankId}
+            bank={model.banks.find((b) => b.id === socBankId) ?? now.bankModel}
             timeZone={tz}
             nowMs={Date.now()}
             latestReading={latestReading}
             onCancel={() => setSocOpen(false)}
             onSave={(s: SocEntry) => {
               setSocOpen(false);
-              change({ kind: "soc", soc: s });
+              change(socBankId === now.bankModel.id ? { kind: "soc", soc: s } : { kind: "soc", soc: s, bankId: socBankId });
             }}
           />
+          </div>
         ) : null}
       </Sheet>
     </div>
