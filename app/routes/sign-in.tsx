@@ -4,6 +4,7 @@ import { protectedAction } from "~/auth/csrf.server";
 import { getUser, safeRedirect } from "~/auth/session.server";
 import { readCodeCookie, requestCode, verifyCode, type SignInFormResult } from "~/auth/sign-in.server";
 import { CODE_VALID_MINUTES } from "~/auth/constants";
+import { clearSignInCookie } from "~/auth/issued-codes.server";
 import { Button, Field, Notice } from "~/components/ui/form";
 
 export async function loader({ request }: Route.LoaderArgs) {
@@ -31,7 +32,10 @@ export const action = protectedAction(async ({ request }: Route.ActionArgs) => {
       return verifyCode(request, { code: String(form.get("code") ?? ""), redirectTo });
     case "restart":
       return redirect(`/sign-in?${new URLSearchParams({ redirectTo })}`, {
-        headers: { "Set-Cookie": "_totp=; Path=/; Max-Age=0; HttpOnly; SameSite=Lax" },
+        headers: [
+          ["Set-Cookie", "_totp=; Path=/; Max-Age=0; HttpOnly; SameSite=Lax"],
+          ["Set-Cookie", await clearSignInCookie()],
+        ],
       });
     default:
       return new Response("Unknown sign-in step.", { status: 400 });

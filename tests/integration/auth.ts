@@ -42,6 +42,8 @@ export type CallOptions = {
   origin?: string | null;
   headers?: Record<string, string>;
   params?: Record<string, string>;
+  /** The load context the server hands every loader and action (e.g. the client's address). */
+  context?: Record<string, unknown>;
 };
 
 export function makeRequest(options: CallOptions): Request {
@@ -69,7 +71,7 @@ type RouteFunction = (args: { request: Request; params: Record<string, string>; 
 export async function callRoute(fn: unknown, options: CallOptions): Promise<CallResult> {
   const request = makeRequest(options);
   try {
-    return await normalise(await (fn as RouteFunction)({ request, params: options.params ?? {}, context: {} }));
+    return await normalise(await (fn as RouteFunction)({ request, params: options.params ?? {}, context: options.context ?? {} }));
   } catch (thrown) {
     if (thrown instanceof Response || isDataWithInit(thrown)) return normalise(thrown);
     throw thrown;
