@@ -25,7 +25,7 @@ import {
   type SyncRequest,
   type SyncResponse,
 } from "~/offline/protocol";
-import { createDraft, getAsBuilt, saveRevision, StaleRevisionError, type RigRole } from "./rigs.server";
+import { BranchNotInRigError, createDraft, getAsBuilt, saveRevision, StaleRevisionError, type RigRole } from "./rigs.server";
 import { writeRigState } from "./rig-state.server";
 import { checkChangeAgainstModel } from "~/schemas/rig-state";
 import { toWire } from "./readings.server";
@@ -281,6 +281,7 @@ async function applyOne(ctx: Ctx, item: Parsed): Promise<ChangeResult> {
       if (!branchId) return refused(item.id, "not_found", "This rig's model could not be found, so the change was not saved.");
       try {
         const saved = await saveRevision(db, {
+          rigId,
           branchId,
           expectedRevision: payload.baseRevision,
           document: checked.model,
@@ -290,10 +291,13 @@ async function applyOne(ctx: Ctx, item: Parsed): Promise<ChangeResult> {
         await logChanges(tx, [{ ...base, kind: "model.save", entityId: branchId }]);
         return { id: item.id, status: "applied", detail: { branchId, revision: saved.revision } };
       } catch (error) {
+        if (error instanceof BranchNotInRigError) {
+          return refused(item.id, "not_found", "That model branch is not one of this rig's, so the change was not saved.");
+        }
         if (!(error instanceof StaleRevisionError)) throw error;
         // The as-built moved while this phone was offline: keep the edit as a draft to compare.
         const draft = await createDraft(db, { rigId, name: `Offline edit ${item.clientTime.toISOString().slice(0, 16).replace("T", " ")}`, authorId: actor.userId });
-        const saved = await saveRevision(db, { branchId: draft.id, expectedRevision: 1, document: checked.model, authorId: actor.userId, message: payload.message ?? "Saved offline" });
+        const saved = await saveRevision(db, { rigId, branchId: draft.id, expectedRevision: 1, document: checked.model, authorId: actor.userId, message: payload.message ?? "Saved offline" });
         await logChanges(tx, [{ ...base, kind: "model.save", entityId: draft.id }]);
         return { id: item.id, status: "applied", detail: { becameDraft: true, branchId: draft.id, revision: saved.revision } };
       }

@@ -38,7 +38,7 @@ export const action = protectedAction(async ({ request, params }: Route.ActionAr
   const checked = validateModel(model);
   if (!checked.ok) return apiError(400, "invalid_mode", checked.issues[0]?.message ?? "The mode does not fit the rig.", checked.issues);
   try {
-    const saved = await saveRevision(db, { branchId: asBuilt.branchId, expectedRevision: asBuilt.revision, document: checked.model, authorId: access.user.id, message });
+    const saved = await saveRevision(db, { rigId: access.rig.id, branchId: asBuilt.branchId, expectedRevision: asBuilt.revision, document: checked.model, authorId: access.user.id, message });
     await recordServerChange(db, { rigId: access.rig.id, authorId: access.user.id, kind: "model.save", entityId: asBuilt.branchId });
     return Response.json({ revision: saved.revision, modeId, model: checked.model });
   } catch (error) {
