@@ -6,14 +6,14 @@
  */
 import path from "node:path";
 import { fileURLToPath } from "node:url";
-import { asc, eq } from "drizzle-orm";
 import { afterAll, beforeAll, describe, expect, test } from "vitest";
-import { modelBranches, modelRevisions, readings, rigInvites, rigMembers, rigState, syncChanges } from "~/db/schema";
+import { rigMembers } from "~/db/schema";
 import { createInvite } from "~/repos/members.server";
 import { createRig } from "~/repos/rigs.server";
 import { applySync } from "~/repos/sync.server";
 import { juniperModel } from "../fixtures/juniper";
 import { openTestDb } from "./db";
+import { rigSnapshot } from "./rig-snapshot";
 import { callRoute, makeUser, sessionCookieFor } from "./auth";
 import { crossRigCases, permissionMatrix, type CrossRigContext } from "./permission-matrix";
 import { juniperReading, addChange } from "./sync-helpers";
@@ -26,25 +26,7 @@ let ctx: CrossRigContext;
 let ownerOfThis: string;
 let ownerOfBoth: string;
 
-/** Everything stored about a rig that a write could touch. */
-async function snapshot(rigId: string) {
-  const branches = await db.select().from(modelBranches).where(eq(modelBranches.rigId, rigId)).orderBy(asc(modelBranches.id));
-  const revisions = await db
-    .select({ branchId: modelRevisions.branchId, revision: modelRevisions.revision, document: modelRevisions.document })
-    .from(modelRevisions)
-    .innerJoin(modelBranches, eq(modelBranches.id, modelRevisions.branchId))
-    .where(eq(modelBranches.rigId, rigId))
-    .orderBy(asc(modelRevisions.branchId), asc(modelRevisions.revision));
-  return {
-    branches,
-    revisions,
-    readings: await db.select().from(readings).where(eq(readings.rigId, rigId)).orderBy(asc(readings.id)),
-    members: await db.select().from(rigMembers).where(eq(rigMembers.rigId, rigId)).orderBy(asc(rigMembers.userId)),
-    invites: await db.select().from(rigInvites).where(eq(rigInvites.rigId, rigId)).orderBy(asc(rigInvites.id)),
-    log: await db.select().from(syncChanges).where(eq(syncChanges.rigId, rigId)).orderBy(asc(syncChanges.cursor)),
-    state: await db.select().from(rigState).where(eq(rigState.rigId, rigId)),
-  };
-}
+const snapshot = (rigId: string) => rigSnapshot(db, rigId);
 
 beforeAll(async () => {
   const ada = await makeUser(db, "Ada");
