@@ -21,6 +21,7 @@ import {
   uniqueIndex,
   uuid,
 } from "drizzle-orm/pg-core";
+import { READING_SOURCES } from "../schemas/readings";
 
 const createdAt = () => timestamp("created_at", { withTimezone: true }).notNull().defaultNow();
 const id = () => uuid("id").primaryKey().defaultRandom();
@@ -236,7 +237,7 @@ export const switchChanges = pgTable(
 
 /* ------------------------------------------------------------ logbook and sync */
 
-export const readingSource = pgEnum("reading_source", ["hand", "csv", "device"]);
+export const readingSource = pgEnum("reading_source", READING_SOURCES);
 
 /**
  * One logbook reading. The id is generated on the phone (idempotency: the same reading sent

@@ -8,6 +8,7 @@ import { sessions } from "~/db/schema";
 import { deleteAccount, RigSetChangedError, soleOwnedRigs } from "~/repos/members.server";
 import { nameSchema, preferencesSchema, savePreferences, setName } from "~/repos/users.server";
 import { Button, Card, Field, Notice } from "~/components/ui/form";
+import { readForm } from "~/lib/http";
 
 /** GET /account — name, e-mail, units, night mode, signing out, deleting the account. */
 export async function loader({ request }: Route.LoaderArgs) {
@@ -32,7 +33,7 @@ type AccountAnswer = {
 export const action = protectedAction(async ({ request }: Route.ActionArgs) => {
   const user = await requireUser(request);
   const db = getDb();
-  const form = await request.formData();
+  const form = await readForm(request);
   const intent = String(form.get("intent") ?? "");
   const answer = (status: number, rest: Omit<AccountAnswer, "intent">) => data<AccountAnswer>({ intent, ...rest }, { status });
   switch (intent) {

@@ -20,6 +20,7 @@ import {
   revokeInvite,
 } from "~/repos/members.server";
 import { Button, Card, Field, Notice } from "~/components/ui/form";
+import { readForm } from "~/lib/http";
 
 /** GET /rigs/:rigId/members — everyone on the rig sees who is on it; owners also manage it. */
 export async function loader({ request, params }: Route.LoaderArgs) {
@@ -43,7 +44,7 @@ type ActionAnswer = {
 const roleSchema = z.enum(rigRoles, { error: "Choose owner, crew or guest." });
 
 export const action = protectedAction(async ({ request, params }: Route.ActionArgs) => {
-  const form = await request.formData();
+  const form = await readForm(request);
   const intent = String(form.get("intent") ?? "");
   // Leaving is for every member; everything else here is for owners.
   const { user, rig } = await requireRigRole(request, params.rigId, intent === "leave" ? "guest" : "owner");

@@ -8,6 +8,7 @@ import { createRig, listRigsForUser } from "~/repos/rigs.server";
 import { starterModel } from "~/repos/starter-model";
 import { RigList } from "~/components/account/rig-list";
 import { Button, Card, Field } from "~/components/ui/form";
+import { readForm } from "~/lib/http";
 
 const rigNameSchema = z
   .string({ error: "Name the rig." })
@@ -24,7 +25,7 @@ export async function loader({ request }: Route.LoaderArgs) {
 
 export const action = protectedAction(async ({ request }: Route.ActionArgs) => {
   const user = await requireUser(request);
-  const form = await request.formData();
+  const form = await readForm(request);
   const typed = String(form.get("name") ?? "");
   const parsed = rigNameSchema.safeParse(typed);
   if (!parsed.success) return data({ values: { name: typed }, error: parsed.error.issues[0]?.message }, { status: 400 });

@@ -6,6 +6,7 @@ import { readCodeCookie, requestCode, verifyCode, type SignInFormResult } from "
 import { CODE_VALID_MINUTES } from "~/auth/constants";
 import { clearSignInCookie } from "~/auth/issued-codes.server";
 import { Button, Field, Notice } from "~/components/ui/form";
+import { apiError, readForm } from "~/lib/http";
 
 export async function loader({ request }: Route.LoaderArgs) {
   const url = new URL(request.url);
@@ -21,7 +22,7 @@ export async function loader({ request }: Route.LoaderArgs) {
 }
 
 export const action = protectedAction(async ({ request }: Route.ActionArgs) => {
-  const form = await request.formData();
+  const form = await readForm(request);
   const redirectTo = safeRedirect(form.get("redirectTo"));
   switch (form.get("intent")) {
     case "send":
@@ -38,7 +39,7 @@ export const action = protectedAction(async ({ request }: Route.ActionArgs) => {
         ],
       });
     default:
-      return new Response("Unknown sign-in step.", { status: 400 });
+      throw apiError(400, "unknown_intent", "Unknown sign-in step: send intent send, resend, verify or restart.");
   }
 });
 

@@ -5,6 +5,7 @@ import { requireUser, safeRedirect } from "~/auth/session.server";
 import { getDb } from "~/db/db.server";
 import { nameSchema, setName } from "~/repos/users.server";
 import { Button, Field } from "~/components/ui/form";
+import { readForm } from "~/lib/http";
 
 /** GET /welcome — asked once, after a first sign-in: the name the crew will see. */
 export async function loader({ request }: Route.LoaderArgs) {
@@ -16,7 +17,7 @@ export async function loader({ request }: Route.LoaderArgs) {
 
 export const action = protectedAction(async ({ request }: Route.ActionArgs) => {
   const user = await requireUser(request);
-  const form = await request.formData();
+  const form = await readForm(request);
   const redirectTo = safeRedirect(form.get("redirectTo"));
   const parsed = nameSchema.safeParse(form.get("name"));
   if (!parsed.success) {

@@ -48,7 +48,7 @@ describe("Rig model revisions in PostgreSQL", () => {
 
   test("two saves racing on the same revision: exactly one wins", async () => {
     const owner = await newUser();
-    const { rig, branch } = await createRig(db, { name: "Race van", ownerId: owner.id, document: juniperModel });
+    const { branch } = await createRig(db, { name: "Race van", ownerId: owner.id, document: juniperModel });
     const results = await Promise.allSettled(
       [1, 2, 3].map((n) =>
         saveRevision(db, { rigId: branch.rigId, branchId: branch.id, expectedRevision: 1, document: { ...juniperModel, name: `Edit ${n}` }, authorId: owner.id }),

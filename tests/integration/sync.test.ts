@@ -5,7 +5,7 @@ import { modelBranches, readings, syncChanges } from "~/db/schema";
 import { applySync } from "~/repos/sync.server";
 import { getRigState } from "~/repos/rig-state.server";
 import { getAsBuilt, saveRevision } from "~/repos/rigs.server";
-import { MAX_PULL } from "~/offline/protocol";
+import { MAX_PULL } from "~/schemas/sync";
 import { addChange, change, juniperCrew, juniperReading } from "./sync-helpers";
 import { juniperModel } from "../fixtures/juniper";
 
