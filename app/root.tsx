@@ -20,6 +20,7 @@ import { currentRigOf } from "~/auth/guards.server";
 import { navFor } from "~/components/app-shell";
 import { lastRigSetCookie } from "~/lib/last-rig";
 import "./app.css";
+import { useNonce } from "~/lib/nonce";
 
 export const links: Route.LinksFunction = () => [
   { rel: "manifest", href: "/manifest.webmanifest" },
@@ -61,6 +62,7 @@ export function shouldRevalidate({ formAction, defaultShouldRevalidate }: Should
 export function Layout({ children }: { children: React.ReactNode }) {
   const root = useRouteLoaderData<typeof loader>("root");
   const night = root?.night ?? false;
+  const nonce = useNonce();
   return (
     <html lang="en" className={night ? "night" : undefined}>
       <head>
@@ -73,8 +75,8 @@ export function Layout({ children }: { children: React.ReactNode }) {
       </head>
       <body>
         {children}
-        <ScrollRestoration />
-        <Scripts />
+        <ScrollRestoration nonce={nonce} />
+        <Scripts nonce={nonce} />
       </body>
     </html>
   );

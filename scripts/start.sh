@@ -7,7 +7,7 @@ cd "$ROOT"
 
 export NODE_ENV=production
 export PORT="${PORT:-3000}"
-export HOST="${HOST:-127.0.0.1}" # react-router-serve listens on loopback only unless told otherwise
+export HOST="${HOST:-127.0.0.1}" # scripts/serve.mjs listens on loopback only unless told otherwise
 export PGPORT="${PGPORT:-54329}"
 export DATABASE_URL="${DATABASE_URL:-postgres://tilldawn@127.0.0.1:$PGPORT/tilldawn}"
 export APP_URL="${APP_URL:-http://127.0.0.1:$PORT}"
@@ -45,7 +45,7 @@ fi
 log "Building the app"
 npx react-router build >"$ROOT/.data/build.log" 2>&1 || { tail -n 30 "$ROOT/.data/build.log"; die "Build failed (full log: .data/build.log)"; }
 
-setsid ./node_modules/.bin/react-router-serve ./build/server/index.js & PIDS+=($!)
+setsid node scripts/serve.mjs ./build/server/index.js & PIDS+=($!)
 node scripts/wait-ready.mjs "http://127.0.0.1:$PORT/api/health" 30000 || die "The server did not start"
 log "Ready in $(( $(date +%s) - started )) s: http://127.0.0.1:$PORT"
 node --import tsx scripts/sign-in-help.ts 2>/dev/null || true

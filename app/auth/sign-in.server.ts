@@ -180,7 +180,7 @@ async function runStrategy(request: Request): Promise<Response> {
 
 function formRequest(request: Request, fields: Record<string, string>): Request {
   const headers = new Headers();
-  for (const name of ["cookie", "user-agent", "origin", "x-forwarded-for", "x-real-ip"]) {
+  for (const name of ["cookie", "user-agent", "origin"]) {
     const value = request.headers.get(name);
     if (value) headers.set(name, value);
   }
@@ -213,7 +213,12 @@ function tooMany(values: SignInFormResult["values"], step: SignInFormResult["ste
  * Sends a code (new or again) to `email`, within the limits. Answers the strategy's redirect
  * (with its cookie), or 400/429/503 with the form values.
  */
-export async function requestCode(request: Request, input: { email: unknown; redirectTo: string }, db: Db = getDb()) {
+export async function requestCode(
+  request: Request,
+  input: { email: unknown; redirectTo: string },
+  context: unknown = {},
+  db: Db = getDb(),
+) {
   const env = getEnv();
   const typed = typeof input.email === "string" ? input.email : "";
   const values = { email: typed, redirectTo: input.redirectTo };
@@ -225,7 +230,7 @@ export async function requestCode(request: Request, input: { email: unknown; red
     );
   }
   const email = parsed.data;
-  const byAddress = await hitLimit(db, `sign-in-code:ip:${clientAddress(request)}`, env.SIGN_IN_CODES_PER_ADDRESS, CODE_REQUEST_WINDOW_S);
+  const byAddress = await hitLimit(db, `sign-in-code:ip:${clientAddress(context)}`, env.SIGN_IN_CODES_PER_ADDRESS, CODE_REQUEST_WINDOW_S);
   if (!byAddress.ok) return tooMany(values, "email", byAddress.retryAfterS, "Too many sign-in codes were asked for from this network.");
   const byEmail = await hitLimit(db, `sign-in-code:email:${email}`, env.SIGN_IN_CODES_PER_EMAIL, CODE_REQUEST_WINDOW_S);
   if (!byEmail.ok) return tooMany(values, "email", byEmail.retryAfterS, `Too many sign-in codes were sent to ${email}.`);

@@ -31,6 +31,7 @@ import { BranchNotInRigError, createDraft, getAsBuilt, saveRevision, StaleRevisi
 import { writeRigState } from "./rig-state.server";
 import { checkChangeAgainstModel } from "~/schemas/rig-state";
 import { toWire } from "./readings.server";
+import { READING_VALUE_KEYS } from "~/schemas/readings";
 
 type Tx = Parameters<Parameters<Db["transaction"]>[0]>[0];
 export type SyncActor = { userId: string; role: RigRole };
@@ -317,11 +318,7 @@ async function applyOne(ctx: Ctx, item: Parsed): Promise<ChangeResult> {
         const { set } = payload as ChangePayload<"reading.edit">;
         const next: Partial<typeof readings.$inferInsert> = { updatedAt: ctx.receivedAt };
         if (set.takenAt !== undefined) next.takenAt = new Date(set.takenAt);
-        if (set.bankVoltageV !== undefined) next.bankVoltageV = set.bankVoltageV;
-        if (set.currentA !== undefined) next.currentA = set.currentA;
-        if (set.socPct !== undefined) next.socPct = set.socPct;
-        if (set.temperatureC !== undefined) next.temperatureC = set.temperatureC;
-        if (set.solarWhToday !== undefined) next.solarWhToday = set.solarWhToday;
+        for (const key of READING_VALUE_KEYS) if (set[key] !== undefined) next[key] = set[key];
         if (set.note !== undefined) next.note = set.note;
         await tx.update(readings).set(next).where(eq(readings.id, row.id));
       }

@@ -21,14 +21,14 @@ export async function loader({ request }: Route.LoaderArgs) {
   };
 }
 
-export const action = protectedAction(async ({ request }: Route.ActionArgs) => {
+export const action = protectedAction(async ({ request, context }: Route.ActionArgs) => {
   const form = await readForm(request);
   const redirectTo = safeRedirect(form.get("redirectTo"));
   switch (form.get("intent")) {
     case "send":
-      return requestCode(request, { email: form.get("email"), redirectTo });
+      return requestCode(request, { email: form.get("email"), redirectTo }, context);
     case "resend":
-      return requestCode(request, { email: readCodeCookie(request).email ?? "", redirectTo });
+      return requestCode(request, { email: readCodeCookie(request).email ?? "", redirectTo }, context);
     case "verify":
       return verifyCode(request, { code: String(form.get("code") ?? ""), redirectTo });
     case "restart":

@@ -16,7 +16,7 @@ export default async function setup() {
   await rm(outboxDir, { recursive: true, force: true });
   const smtp = await startSmtpFake({ port: Number(process.env.E2E_SMTP_PORT ?? 2599), outboxDir });
   const fakesEnv = { SMTP_PORT: String(smtp.port), DEV_OUTBOX_DIR: outboxDir };
-  const server = spawn(`${root}node_modules/.bin/react-router-serve`, ["./build/server/index.js"], {
+  const server = spawn(process.execPath, [`${root}scripts/serve.mjs`, "./build/server/index.js"], {
     cwd: root,
     env: { ...process.env, NODE_ENV: "production", HOST: "127.0.0.1", PORT: port, APP_URL: baseUrl, ...fakesEnv },
     stdio: ["ignore", "ignore", "inherit"],

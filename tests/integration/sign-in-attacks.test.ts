@@ -27,7 +27,6 @@ async function askForCode(email: string) {
   const result = await callRoute(signInRoute.action, {
     path: "/sign-in",
     form: { intent: "send", email, redirectTo: "/" },
-    headers: { "x-forwarded-for": ip() },
     context: { clientAddress: ip() },
   });
   expect(result.status).toBe(302);
@@ -144,4 +143,55 @@ describe("Tries are counted per issued code on the server", () => {
     expect(statuses.slice(0, 5).every((s) => s === 302)).toBe(true);
     expect(statuses.slice(5).every((s) => s === 429)).toBe(true);
   });
+});
+
+describe("Limits key on the connection, not on headers (finding 5)", () => {
+  test("a new X-Forwarded-For on every request does not dodge the per-client limit; the 21st is 429 with Retry-After", async () => {
+    const socket = ip();
+    const answers: CallResult[] = [];
+    for (let i = 0; i < 21; i++) {
+      answers.push(
+        await callRoute(signInRoute.action, {
+          path: "/sign-in",
+          form: { intent: "send", email: uniqueEmail(), redirectTo: "/" },
+          headers: { "x-forwarded-for": `10.9.${i}.1`, "x-real-ip": `10.8.${i}.1` },
+          context: { clientAddress: socket },
+        }),
+      );
+    }
+    expect(answers.slice(0, 20).every((a) => a.status === 302)).toBe(true);
+    expect(answers[20]!.status).toBe(429);
+    expect(Number(answers[20]!.headers.get("retry-after"))).toBeGreaterThan(0);
+  });
+
+  test("one busy client does not lock another out of sign-in", async () => {
+    const busy = ip();
+    for (let i = 0; i < 21; i++) {
+      await callRoute(signInRoute.action, { path: "/sign-in", form: { intent: "send", email: uniqueEmail(), redirectTo: "/" }, context: { clientAddress: busy } });
+    }
+    const other = await callRoute(signInRoute.action, { path: "/sign-in", form: { intent: "send", email: uniqueEmail(), redirectTo: "/" }, context: { clientAddress: ip() } });
+    expect(other.status).toBe(302);
+  });
+});
+
+describe("After sign-in only same-origin paths are followed (finding 8)", () => {
+  for (const target of ["/\t/evil.example", "/%09/evil.example", "/\n/evil.example", "//evil.example", "/\\evil.example", "https://evil.example/", "/\r\nSet-Cookie: x=1"]) {
+    test(`redirectTo=${JSON.stringify(target)} never leaves the site and never fails`, async () => {
+      const email = uniqueEmail("sam");
+      const mine = await askForCode(email);
+      const answer = await callRoute(signInRoute.action, {
+        path: "/sign-in",
+        cookie: `${mine.totp}; ${mine.issued}`,
+        form: { intent: "verify", code: mine.code, redirectTo: target },
+      });
+      expect(answer.status).toBe(302);
+      const location = answer.location!;
+      expect(location).not.toMatch(/[\t\r\n]/);
+      const landed = new URL(location, "http://tilldawn.test");
+      expect(landed.origin).toBe("http://tilldawn.test");
+      const inner = landed.searchParams.get("redirectTo");
+      if (inner) expect(new URL(inner, "http://tilldawn.test").origin).toBe("http://tilldawn.test");
+      expect(await signedInAs(answer)).toBe(email);
+    });
+  }
 });

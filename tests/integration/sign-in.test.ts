@@ -32,7 +32,7 @@ async function askForCode(email: string, ip = address(), redirectTo = "/rigs") {
   const result = await callRoute(signInRoute.action, {
     path: "/sign-in",
     form: { intent: "send", email, redirectTo },
-    headers: { "x-forwarded-for": ip },
+    context: { clientAddress: ip },
   });
   return { result, cookie: codeCookies(result) };
 }
