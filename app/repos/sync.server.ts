@@ -75,11 +75,12 @@ export async function applySync(db: Db, actor: SyncActor, request: SyncRequest, 
       return;
     }
     const change = envelope.data;
+    // Only an accepted change claims its id in this batch: a refused copy sent before the real
+    // one (same id) must not turn the real one into a "duplicate" that was never applied.
     if (idsInBatch.has(change.id)) {
       results[index] = { id: change.id, status: "duplicate" };
       return;
     }
-    idsInBatch.add(change.id);
     if (change.rigId !== request.rigId) {
       results[index] = refused(change.id, "wrong_rig", "This change belongs to another rig; send it with that rig's sync.");
       return;
@@ -103,6 +104,7 @@ export async function applySync(db: Db, actor: SyncActor, request: SyncRequest, 
       results[index] = refused(change.id, "read_only", "Guests follow this rig read-only; the change was not saved.");
       return;
     }
+    idsInBatch.add(change.id);
     work.push({ index, id: change.id, kind, clientTime: new Date(change.clientTime), payload: checked.data });
   });
 

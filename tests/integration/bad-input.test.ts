@@ -63,6 +63,17 @@ describe("A sync batch with bad changes keeps the good ones (finding 4)", () => 
   });
 });
 
+describe("A refused copy does not hide the real change (found by the sync property test)", () => {
+  test("a corrupted copy sent before the real change, with the same id, in one batch: the copy is refused and the real one applied", async () => {
+    const real = addChange(rigId, juniperReading(20));
+    const copy = { ...real, payload: { reading: { ...(real.payload as { reading: object }).reading, note: "bad\u0000" } } };
+    const result = await callRoute(syncRoute.action, { path: "/api/sync", cookie: owner, json: { rigId, cursor: null, changes: [copy, real] } });
+    expect((result.body as { results: Array<{ status: string }> }).results.map((r) => r.status)).toEqual(["refused", "applied"]);
+    const id = (real.payload as { reading: { id: string } }).reading.id;
+    expect(await db.select().from(readings).where(eq(readings.id, id))).toHaveLength(1);
+  });
+});
+
 describe("Bad input answers a clear 4xx (finding 9)", () => {
   const pageForms = [
     { name: "/sign-in", fn: signInRoute.action, path: "/sign-in", params: {} },
