@@ -35,6 +35,8 @@ const deliveryArb = fc.record({
   badCopyFirst: fc.array(fc.boolean(), { minLength: 12, maxLength: 12 }),
 });
 
+type DeliveryPlan = { batchSizes: number[]; resendBatch: boolean[]; junk: number[]; badCopyFirst: boolean[] };
+
 /** The phones' changes for one rig; `ids` maps each scenario slot to this rig's uuids. */
 function buildChanges(rigId: string, phones: Op[][], ids: (slot: string) => string): Change[][] {
   return phones.map((ops, p) => {
@@ -83,7 +85,7 @@ function junkChange(rigId: string, n: number, like?: Change): unknown {
 }
 
 /** One phone's outbox as batches: split, bad copies before real ones, junk mixed in, re-sends. */
-function deliver(rigId: string, changes: Change[], plan: fc.infer<typeof deliveryArb>): unknown[][] {
+function deliver(rigId: string, changes: Change[], plan: DeliveryPlan): unknown[][] {
   const batches: unknown[][] = [];
   let at = 0;
   for (let b = 0; at < changes.length; b++) {
