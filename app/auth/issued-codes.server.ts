@@ -66,7 +66,9 @@ export async function recordIssuedCode(db: Db, id: string, email: string, code: 
 
 export type CodeCheck =
   | { ok: true; email: string }
-  | { ok: false; reason: "unknown" | "used" | "too_many" | "expired" | "wrong" };
+  | { ok: false; reason: "unknown" | "used" | "expired" | "wrong" }
+  /** `retryAfterS`: until the dead code would have expired (a new code can be asked for now). */
+  | { ok: false; reason: "too_many"; retryAfterS: number };
 
 /**
  * Counts one try at issued code `id` and answers whether `code` signs in, and as whom. The try
@@ -84,7 +86,10 @@ export async function checkIssuedCode(
     const [row] = await tx.select().from(issuedSignInCodes).where(eq(issuedSignInCodes.id, id)).for("update");
     if (!row) return { ok: false, reason: "unknown" } as const;
     if (row.usedAt) return { ok: false, reason: "used" } as const;
-    if (row.tries >= MAX_CODE_ATTEMPTS) return { ok: false, reason: "too_many" } as const;
+    if (row.tries >= MAX_CODE_ATTEMPTS) {
+      const retryAfterS = Math.max(1, Math.ceil((row.expiresAt.getTime() - now.getTime()) / 1000));
+      return { ok: false, reason: "too_many", retryAfterS } as const;
+    }
     await tx.update(issuedSignInCodes).set({ tries: row.tries + 1 }).where(eq(issuedSignInCodes.id, id));
     if (now.getTime() > row.expiresAt.getTime()) return { ok: false, reason: "expired" } as const;
     const given = Buffer.from(codeHash(id, code ?? ""), "hex");

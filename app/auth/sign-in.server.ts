@@ -268,7 +268,10 @@ export async function verifyCode(request: Request, input: { code: string | null;
     if (check.reason === "unknown") return data<SignInFormResult>({ step: "email", values, error: messages.noCode }, { status: 400 });
     if (check.reason === "used") return data<SignInFormResult>({ step: "code", values, error: messages.usedCode }, { status: 400 });
     if (check.reason === "too_many") {
-      return data<SignInFormResult>({ step: "code", values, error: messages.tooManyTries }, { status: 429 });
+      return data<SignInFormResult>(
+        { step: "code", values, error: messages.tooManyTries, retryAfterS: check.retryAfterS },
+        { status: 429, headers: { "Retry-After": String(check.retryAfterS) } },
+      );
     }
     // Wrong or expired: the strategy runs on and answers its own failure (it says which);
     // its verify callback signs nobody in, because this request was not approved.

@@ -130,6 +130,7 @@ describe("Tries are counted per issued code on the server", () => {
     for (let i = 0; i < 5; i++) expect((await verify(`${respelled(mine.totp, i)}; ${mine.issued}`, wrong)).status).toBe(302);
     const capped = await verify(`${mine.totp}; ${mine.issued}`, mine.code);
     expect(capped.status).toBe(429);
+    expect(Number(capped.headers.get("retry-after"))).toBeGreaterThan(0);
     expect(await signedInAs(capped)).toBeNull();
     const [row] = await db.select().from(issuedSignInCodes).where(eq(issuedSignInCodes.email, email));
     expect(row!.tries).toBe(5);
