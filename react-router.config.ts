@@ -5,6 +5,10 @@ export default {
   ssr: true,
   // Lazy route discovery fetches /__manifest, which cannot work offline.
   routeDiscovery: { mode: "initial" },
+  // Forms posted from APP_URL's origin pass the framework's action check even when a TLS proxy
+  // hands the request over as http://. scripts/serve.mjs sets the same from APP_URL at run time
+  // (so one build serves any APP_URL); this covers a build served some other way.
+  allowedActionOrigins: process.env.APP_URL ? [new URL(process.env.APP_URL).host] : undefined,
   async buildEnd({ reactRouterConfig }) {
     // The PWA plugin only compiles the worker; the precache list is injected here, after
     // React Router has written every asset (its manifest-<hash>.js included).

@@ -1,7 +1,10 @@
 // The server entry: React Router's default Node renderer, plus the environment check at boot
-// so a bad setting stops the server with a clear message before it takes a request.
+// so a bad setting stops the server with a clear message before it takes a request, and the
+// document's nonce-based Content-Security-Policy (app/lib/nonce.ts).
 import { PassThrough } from "node:stream";
+import { randomBytes } from "node:crypto";
 import { getEnv } from "./env.server";
+import { documentCsp, NonceContext } from "./lib/nonce";
 
 import type { AppLoadContext, EntryContext } from "react-router";
 import { createReadableStreamFromReadable } from "@react-router/node";
@@ -19,8 +22,12 @@ export default function handleRequest(
   responseStatusCode: number,
   responseHeaders: Headers,
   routerContext: EntryContext,
-  _loadContext: AppLoadContext,
+  loadContext: AppLoadContext,
 ) {
+  // A nonce per document (scripts/serve.mjs makes one per request; the dev server does not).
+  const given = (loadContext as { cspNonce?: unknown } | undefined)?.cspNonce;
+  const nonce = typeof given === "string" && given ? given : randomBytes(16).toString("base64");
+  responseHeaders.set("Content-Security-Policy", documentCsp(nonce, getEnv().APP_URL?.startsWith("https:") ?? false));
   // https://httpwg.org/specs/rfc9110.html#HEAD
   if (request.method.toUpperCase() === "HEAD") {
     return new Response(null, {
@@ -48,8 +55,11 @@ export default function handleRequest(
     );
 
     const { pipe, abort } = renderToPipeableStream(
-      <ServerRouter context={routerContext} url={request.url} />,
+      <NonceContext.Provider value={nonce}>
+        <ServerRouter context={routerContext} url={request.url} nonce={nonce} />
+      </NonceContext.Provider>,
       {
+        nonce,
         [readyOption]() {
           shellRendered = true;
           const body = new PassThrough({

@@ -1,3 +1,6 @@
+import { randomBytes } from "node:crypto";
+import { mkdirSync, readFileSync, writeFileSync } from "node:fs";
+import { dirname, resolve } from "node:path";
 import { z } from "zod";
 
 /**
@@ -6,12 +9,43 @@ import { z } from "zod";
  *
  * "Local" means a development run, or a production build served on loopback (`npm start`,
  * `npm test`: APP_URL unset or on 127.0.0.1/localhost) with none of the production secrets
- * given. A local run signs cookies with fixed development secrets and sends e-mail to the SMTP
- * fake on loopback (scripts/fakes.ts). Otherwise NODE_ENV=production requires APP_URL,
+ * given. A local run signs cookies with random secrets made on its first start and kept in the
+ * git-ignored `.data/local-secrets.json` (mode 600; LOCAL_SECRETS_FILE to move it), and sends
+ * e-mail to the SMTP fake on loopback (scripts/fakes.ts). Otherwise NODE_ENV=production requires APP_URL,
  * SESSION_SECRET, TOTP_SECRET and SMTP_URL, all four: a partial set stops the server.
  */
-const DEV_SESSION_SECRET = "tilldawn-development-session-secret-not-for-production";
-const DEV_TOTP_SECRET = "7d1c0a5e3b9f4e2d8c6a1f0b3e5d7c9a2b4d6f8e0a1c3e5b7d9f1a3c5e7b9d0f";
+export type LocalSecrets = { SESSION_SECRET: string; TOTP_SECRET: string };
+
+/** Fresh random secrets (64 hex characters each). */
+export function randomSecrets(): LocalSecrets {
+  return { SESSION_SECRET: randomBytes(32).toString("hex"), TOTP_SECRET: randomBytes(32).toString("hex") };
+}
+
+/**
+ * The local run's secrets: read from `file`, or made and written there (mode 600) on the first
+ * start. Every process of the checkout (server, seed, tests) reads the same file, so a session
+ * made by one is valid in the others.
+ */
+export function fileSecrets(file = resolve(process.env.LOCAL_SECRETS_FILE ?? ".data/local-secrets.json")): LocalSecrets {
+  const read = (): LocalSecrets | null => {
+    try {
+      const parsed = z.object({ SESSION_SECRET: z.string().min(32), TOTP_SECRET: z.string().regex(/^[0-9a-f]{64}$/i) }).safeParse(JSON.parse(readFileSync(file, "utf8")));
+      return parsed.success ? parsed.data : null;
+    } catch {
+      return null;
+    }
+  };
+  const existing = read();
+  if (existing) return existing;
+  mkdirSync(dirname(file), { recursive: true });
+  try {
+    writeFileSync(file, `${JSON.stringify(randomSecrets())}\n`, { mode: 0o600, flag: "wx" });
+  } catch {
+    // Another process wrote it first (or a broken file is there: replace it).
+    if (!read()) writeFileSync(file, `${JSON.stringify(randomSecrets())}\n`, { mode: 0o600 });
+  }
+  return read() ?? randomSecrets();
+}
 
 /* ------------------------------------------------------------------ photo storage
  * Photos go to an S3-compatible bucket through @aws-sdk/client-s3 (path-style addressing when
@@ -116,6 +150,11 @@ const envSchema = z
     /** Sign-in codes one e-mail address / one client address may request per 15 minutes. */
     SIGN_IN_CODES_PER_EMAIL: z.coerce.number().int().min(1).default(5),
     SIGN_IN_CODES_PER_ADDRESS: z.coerce.number().int().min(1).default(20),
+    /**
+     * How many proxies in front of the app to trust for the client's address (X-Forwarded-For,
+     * read from the right). 0 (the default): the socket's address; forwarding headers ignored.
+     */
+    TRUST_PROXY: z.coerce.number().int().min(0).max(10).default(0),
     ...photoEnvShape,
   })
   .superRefine((env, ctx) => {
@@ -127,22 +166,21 @@ const envSchema = z
         ctx.addIssue({ code: "custom", path: [key], message: "is required in production (see README, Signing in)" });
       }
     }
-    if (env.SESSION_SECRET === DEV_SESSION_SECRET || env.TOTP_SECRET === DEV_TOTP_SECRET) {
-      ctx.addIssue({ code: "custom", path: ["SESSION_SECRET"], message: "must not be the development secret in production" });
-    }
-  })
-  .transform((env) => {
-    const local = isLocal(env);
-    return {
-      ...env,
-      SESSION_SECRET: env.SESSION_SECRET ?? DEV_SESSION_SECRET,
-      TOTP_SECRET: env.TOTP_SECRET ?? DEV_TOTP_SECRET,
-      /** True while e-mail goes to the local fake: the /dev/outbox page is on. */
-      devOutbox: !env.SMTP_URL,
-      local,
-      photos: photoStorageOf(env, local),
-    };
   });
+
+function finish(env: z.infer<typeof envSchema>, secrets: () => LocalSecrets) {
+  const local = isLocal(env);
+  const made = env.SESSION_SECRET && env.TOTP_SECRET ? null : secrets();
+  return {
+    ...env,
+    SESSION_SECRET: env.SESSION_SECRET ?? made!.SESSION_SECRET,
+    TOTP_SECRET: env.TOTP_SECRET ?? made!.TOTP_SECRET,
+    /** True while e-mail goes to the local fake: the /dev/outbox page is on. */
+    devOutbox: !env.SMTP_URL,
+    local,
+    photos: photoStorageOf(env, local),
+  };
+}
 
 function isLocal(env: { NODE_ENV: string; APP_URL?: string; SESSION_SECRET?: string; TOTP_SECRET?: string; SMTP_URL?: string }): boolean {
   if (env.NODE_ENV !== "production") return true;
@@ -152,11 +190,12 @@ function isLocal(env: { NODE_ENV: string; APP_URL?: string; SESSION_SECRET?: str
   return host === "127.0.0.1" || host === "localhost" || host === "[::1]";
 }
 
-export type Env = z.infer<typeof envSchema>;
+export type Env = ReturnType<typeof finish>;
 
-export function parseEnv(source: Record<string, string | undefined>): Env {
+/** Checks the environment; local runs without secrets get them from `secrets` (random by default). */
+export function parseEnv(source: Record<string, string | undefined>, secrets: () => LocalSecrets = randomSecrets): Env {
   const result = envSchema.safeParse(source);
-  if (result.success) return result.data;
+  if (result.success) return finish(result.data, secrets);
   const lines = result.error.issues.map(
     (issue) => `  ${issue.path.join(".") || "(environment)"}: ${issue.message}`,
   );
@@ -173,7 +212,7 @@ let cached: Env | undefined;
 export function getEnv(): Env {
   if (cached) return cached;
   try {
-    cached = parseEnv(process.env);
+    cached = parseEnv(process.env, fileSecrets);
   } catch (error) {
     if (error instanceof ConfigError) {
       console.error(error.message);

@@ -21,6 +21,7 @@ import { navFor } from "~/components/app-shell";
 import { lastRigSetCookie } from "~/lib/last-rig";
 import { thrownMessage } from "~/lib/http";
 import "./app.css";
+import { useNonce } from "~/lib/nonce";
 
 export const links: Route.LinksFunction = () => [
   { rel: "manifest", href: "/manifest.webmanifest" },
@@ -62,6 +63,7 @@ export function shouldRevalidate({ formAction, defaultShouldRevalidate }: Should
 export function Layout({ children }: { children: React.ReactNode }) {
   const root = useRouteLoaderData<typeof loader>("root");
   const night = root?.night ?? false;
+  const nonce = useNonce();
   return (
     <html lang="en" className={night ? "night" : undefined}>
       <head>
@@ -74,8 +76,8 @@ export function Layout({ children }: { children: React.ReactNode }) {
       </head>
       <body>
         {children}
-        <ScrollRestoration />
-        <Scripts />
+        <ScrollRestoration nonce={nonce} />
+        <Scripts nonce={nonce} />
       </body>
     </html>
   );

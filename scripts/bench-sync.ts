@@ -68,7 +68,7 @@ async function benchIngest() {
 }
 
 async function startServer(): Promise<ChildProcess> {
-  const child = spawn("node_modules/.bin/react-router-serve", ["./build/server/index.js"], {
+  const child = spawn(process.execPath, ["scripts/serve.mjs", "./build/server/index.js"], {
     env: { ...process.env, NODE_ENV: "production", PORT: String(port), APP_URL: origin, DATABASE_URL: url },
     stdio: ["ignore", "ignore", "inherit"],
   });

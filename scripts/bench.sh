@@ -34,7 +34,7 @@ node --import tsx scripts/bench.ts
 
 log "Building the app"
 npx react-router build >"$ROOT/.data/bench/build.log" 2>&1 || die "Build failed (.data/bench/build.log)"
-NODE_ENV=production PORT="$PORT" ./node_modules/.bin/react-router-serve ./build/server/index.js >/dev/null & SERVER=$!
+NODE_ENV=production PORT="$PORT" node scripts/serve.mjs ./build/server/index.js >/dev/null & SERVER=$!
 node scripts/wait-ready.mjs "http://127.0.0.1:$PORT/api/health" 30000 || die "The app did not start"
 echo
 echo "## Pages"

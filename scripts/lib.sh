@@ -112,7 +112,7 @@ port_free() { ! (exec 3<>"/dev/tcp/127.0.0.1/$1") 2>/dev/null; }
 # local_stack_env: the settings both use (each may be set from outside).
 local_stack_env() {
   export PORT="${PORT:-3000}"
-  export HOST="${HOST:-127.0.0.1}" # react-router-serve and Vite listen on loopback only unless told otherwise
+  export HOST="${HOST:-127.0.0.1}" # scripts/serve.mjs and Vite listen on loopback only unless told otherwise
   export PGPORT="${PGPORT:-54329}"
   export DATABASE_URL="${DATABASE_URL:-postgres://tilldawn@127.0.0.1:$PGPORT/tilldawn}"
   export APP_URL="${APP_URL:-http://127.0.0.1:$PORT}"

@@ -13,7 +13,7 @@ local_stack_up "npm start"
 log "Building the app"
 npx react-router build >"$ROOT/.data/build.log" 2>&1 || { tail -n 30 "$ROOT/.data/build.log"; die "Build failed (full log: .data/build.log)"; }
 
-setsid ./node_modules/.bin/react-router-serve ./build/server/index.js & PIDS+=($!)
+setsid node scripts/serve.mjs ./build/server/index.js & PIDS+=($!)
 node scripts/wait-ready.mjs "http://127.0.0.1:$PORT/api/health" 30000 || die "The server did not start"
 log "Ready in $(( $(date +%s) - started )) s: http://127.0.0.1:$PORT"
 node --import tsx scripts/sign-in-help.ts 2>/dev/null || true

@@ -1,5 +1,8 @@
 import { describe, expect, test } from "vitest";
-import { ConfigError, parseEnv } from "~/env.server";
+import { mkdtempSync, readFileSync, statSync } from "node:fs";
+import { tmpdir } from "node:os";
+import path from "node:path";
+import { ConfigError, fileSecrets, parseEnv } from "~/env.server";
 
 const secrets = {
   SESSION_SECRET: "s".repeat(40),
@@ -42,5 +45,25 @@ describe("Sign-in settings", () => {
 
   test("a TOTP secret that is not 64 hex characters is refused", () => {
     expect(() => parseEnv({ TOTP_SECRET: "short" })).toThrow(/TOTP_SECRET: must be 64 hex characters/);
+  });
+});
+
+describe("Local secrets (issue 9, finding 7)", () => {
+  test("a local run makes random secrets on first start, keeps them in a mode-600 file, and reads the same ones again", () => {
+    const file = path.join(mkdtempSync(path.join(tmpdir(), "tilldawn-secrets-")), "nested", "local-secrets.json");
+    const first = fileSecrets(file);
+    expect(first.TOTP_SECRET).toMatch(/^[0-9a-f]{64}$/);
+    expect(first.SESSION_SECRET.length).toBeGreaterThanOrEqual(32);
+    expect(statSync(file).mode & 0o777).toBe(0o600);
+    expect(fileSecrets(file)).toEqual(first);
+    expect(JSON.parse(readFileSync(file, "utf8"))).toEqual(first);
+    const other = fileSecrets(path.join(mkdtempSync(path.join(tmpdir(), "tilldawn-secrets-")), "s.json"));
+    expect(other.TOTP_SECRET).not.toBe(first.TOTP_SECRET);
+  });
+
+  test("the development secrets are no longer constants in the source: two parses without secrets differ", () => {
+    expect(parseEnv({}).TOTP_SECRET).not.toBe(parseEnv({}).TOTP_SECRET);
+    expect(parseEnv({}).SESSION_SECRET).not.toBe(parseEnv({}).SESSION_SECRET);
+    expect(parseEnv({}, () => ({ SESSION_SECRET: "k".repeat(40), TOTP_SECRET: "b2".repeat(32) })).TOTP_SECRET).toBe("b2".repeat(32));
   });
 });

@@ -24,9 +24,14 @@ export function crossSiteReason(request: Request, allowedOrigins: string[]): str
   return site ? `Sec-Fetch-Site is ${site}` : "the request names no origin";
 }
 
-/** The origins our own pages are served from: APP_URL's, and the one the request came in on. */
+/**
+ * The origins our own pages are served from: APP_URL's (the request's own only while APP_URL
+ * is unset, on a local run whose Host the server has already checked against loopback). The
+ * request's URL is not proof of anything: behind a proxy, or with a forged Host, it can say
+ * whatever the client wants.
+ */
 export function allowedOrigins(request: Request): string[] {
-  return [...new Set([appOrigin(request), new URL(request.url).origin])];
+  return [appOrigin(request)];
 }
 
 /** Throws 403 for a state-changing request from another site. */

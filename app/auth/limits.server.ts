@@ -3,15 +3,12 @@
  *
  * - Requests for a code: at most SIGN_IN_CODES_PER_EMAIL per e-mail address and
  *   SIGN_IN_CODES_PER_ADDRESS per client address in a 15-minute fixed window (`hitLimit`).
- * - Tries per code: at most MAX_CODE_ATTEMPTS, counted against a SHA-256 of the encrypted
- *   code in the browser's sign-in cookie (`recordCodeAttempt`); a used code is never accepted
- *   again, even if the browser replays the old cookie.
+ * - Tries per code: counted on the issued code's own row (issued-codes.server.ts).
  */
 import { createHash } from "node:crypto";
-import { eq, lt, sql } from "drizzle-orm";
+import { lt, sql } from "drizzle-orm";
 import type { Db } from "~/db/db.server";
-import { rateLimitBuckets, signInCodes } from "~/db/schema";
-import { MAX_CODE_ATTEMPTS } from "./constants";
+import { issuedSignInCodes, rateLimitBuckets } from "~/db/schema";
 
 export const CODE_REQUEST_WINDOW_S = 15 * 60;
 
@@ -42,29 +39,9 @@ export function hashOf(value: string): string {
   return createHash("sha256").update(value).digest("hex");
 }
 
-export type AttemptResult = { ok: true; attempt: number } | { ok: false; reason: "used" | "too_many" };
-
-/** Counts one try at the code whose encrypted form is `jwe`; refuses used codes and the 6th try. */
-export async function recordCodeAttempt(db: Db, jwe: string, email: string): Promise<AttemptResult> {
-  const [row] = await db
-    .insert(signInCodes)
-    .values({ codeHash: hashOf(jwe), email: email.toLowerCase(), attempts: 1 })
-    .onConflictDoUpdate({ target: signInCodes.codeHash, set: { attempts: sql`${signInCodes.attempts} + 1` } })
-    .returning({ attempts: signInCodes.attempts, consumedAt: signInCodes.consumedAt });
-  if (!row) throw new Error("attempt upsert returned nothing");
-  if (row.consumedAt) return { ok: false, reason: "used" };
-  if (row.attempts > MAX_CODE_ATTEMPTS) return { ok: false, reason: "too_many" };
-  return { ok: true, attempt: row.attempts };
-}
-
-/** Marks a code used after a successful sign-in. */
-export async function consumeCode(db: Db, jwe: string): Promise<void> {
-  await db.update(signInCodes).set({ consumedAt: new Date() }).where(eq(signInCodes.codeHash, hashOf(jwe)));
-}
-
 /** Housekeeping: forgets code rows and buckets older than a day. */
 export async function pruneSignInRecords(db: Db): Promise<void> {
   const dayAgo = new Date(Date.now() - 86_400_000);
-  await db.delete(signInCodes).where(lt(signInCodes.createdAt, dayAgo));
+  await db.delete(issuedSignInCodes).where(lt(issuedSignInCodes.createdAt, dayAgo));
   await db.delete(rateLimitBuckets).where(lt(rateLimitBuckets.windowStartedAt, dayAgo));
 }

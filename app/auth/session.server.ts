@@ -8,7 +8,7 @@ import { and, eq, gt, lt } from "drizzle-orm";
 import { createCookie, redirect } from "react-router";
 import { getDb, type Db } from "~/db/db.server";
 import { sessions, userPreferences, users } from "~/db/schema";
-import { getEnv } from "~/env.server";
+import { appOrigin, getEnv } from "~/env.server";
 import { apiError } from "~/lib/http";
 import { defaultPreferences, type Preferences } from "~/schemas/account";
 
@@ -164,8 +164,20 @@ export async function deleteExpiredSessions(db: Db): Promise<void> {
   await db.delete(sessions).where(lt(sessions.expiresAt, new Date()));
 }
 
-/** A redirect target from a form or query is followed only when it stays on this site. */
+/**
+ * A redirect target from a form or query is followed only when it stays on this site: it is
+ * parsed with `new URL` against APP_URL's origin (which also drops the tabs and newlines a
+ * browser would drop), and only a same-origin path comes back.
+ */
 export function safeRedirect(to: FormDataEntryValue | string | null | undefined, fallback = "/"): string {
-  if (typeof to !== "string" || !to.startsWith("/") || to.startsWith("//") || to.startsWith("/\\")) return fallback;
-  return to;
+  if (typeof to !== "string" || !to.startsWith("/")) return fallback;
+  const base = new URL(appOrigin());
+  let url: URL;
+  try {
+    url = new URL(to, base);
+  } catch {
+    return fallback;
+  }
+  if (url.origin !== base.origin) return fallback;
+  return `${url.pathname}${url.search}${url.hash}`;
 }

@@ -3,8 +3,10 @@
  *
  * The strategy keeps the code encrypted in its own `_totp` cookie (10 minutes). Around it we
  * add what it does not do for us: rate limits on requesting codes (per e-mail address and per
- * client address, in PostgreSQL), a cap on tries per code and single use (limits.server.ts),
- * accounts created on first sign-in, and our own session (session.server.ts).
+ * client address, in PostgreSQL), a server row per issued code that decides who signs in and
+ * caps the tries (issued-codes.server.ts), accounts created on first sign-in, and our own
+ * session (session.server.ts). Nothing in the browser's cookies decides the address: the
+ * strategy's verify callback signs in only an address the issued-code row approved.
  */
 import { eq, sql } from "drizzle-orm";
 import { data, redirect } from "react-router";
@@ -18,12 +20,28 @@ import { clientAddress } from "~/lib/rate-limit.server";
 import { MailError, sendMail } from "~/mail/mailer.server";
 import { signInCodeMail } from "~/mail/templates";
 import { CODE_VALID_MINUTES, MAX_CODE_ATTEMPTS } from "./constants";
-import { CODE_REQUEST_WINDOW_S, consumeCode, hitLimit, pruneSignInRecords, recordCodeAttempt } from "./limits.server";
+import {
+  checkIssuedCode,
+  clearSignInCookie,
+  codeFromMagicLinkToken,
+  readIssuedCodeId,
+  recordIssuedCode,
+  signInCookie,
+} from "./issued-codes.server";
+import { CODE_REQUEST_WINDOW_S, hitLimit, pruneSignInRecords } from "./limits.server";
 
 export { CODE_VALID_MINUTES };
 import { createSession, deleteExpiredSessions, safeRedirect } from "./session.server";
 
 export const MAGIC_LINK_PATH = "/auth/verify";
+/** The form field (server-made requests only) that hands sendTOTP the issued code's id. */
+const ISSUED_FIELD = "issuedCodeId";
+/**
+ * Sign-ins the issued-code check approved: a one-time random key (sent to the strategy in a
+ * header of the server-made request; remix-auth copies the request) → the address.
+ */
+const approved = new Map<string, string>();
+const APPROVAL_HEADER = "x-tilldawn-sign-in-approval";
 const CODE_COOKIE = "_totp";
 
 export const emailSchema = z
@@ -92,12 +110,15 @@ function getAuthenticator(): Authenticator<void> {
       },
       validateEmail: async (email) => emailSchema.safeParse(email).success,
       sendTOTP: async ({ email, code, magicLink, formData }) => {
+        const issuedId = formData.get(ISSUED_FIELD);
+        if (typeof issuedId !== "string") throw new Error("a sign-in code was asked for without an issued-code id");
         // Links point at APP_URL (the strategy builds them from the request, which behind a
         // proxy is the internal address), and carry where to go after signing in.
         const link = new URL(magicLink);
         const target = new URL(`${link.pathname}${link.search}`, appOrigin());
         const redirectTo = safeRedirect(formData.get("redirectTo"), "");
         if (redirectTo) target.searchParams.set("redirectTo", redirectTo);
+        await recordIssuedCode(getDb(), issuedId, email, code);
         try {
           await sendMail(signInCodeMail({ to: email, code, magicLink: target.toString(), validMinutes: CODE_VALID_MINUTES }));
         } catch (error) {
@@ -108,19 +129,26 @@ function getAuthenticator(): Authenticator<void> {
         }
       },
     },
-    async ({ email, formData, request }) => {
+    async ({ formData, request }) => {
       // The strategy ignores what verify returns: we end the sign-in by throwing our redirect,
       // carrying the session cookie. The strategy appends its own cookie (now cleared).
+      // The address is the one the issued-code row approved for this very request, never the
+      // strategy cookie's: without an approval, nobody signs in.
+      const key = request.headers.get(APPROVAL_HEADER);
+      const email = key ? approved.get(key) : undefined;
+      if (!key || !email) throw new Error(messages.invalidCode);
+      approved.delete(key);
       const db = getDb();
-      const { jwe } = readCodeCookie(request);
-      if (jwe) await consumeCode(db, jwe);
       // Housekeeping rides along with sign-ins: expired sessions, day-old code rows and buckets.
       await Promise.all([deleteExpiredSessions(db), pruneSignInRecords(db)]);
       const { user, created } = await findOrCreateUser(db, email);
       const session = await createSession(db, user.id, request.headers.get("user-agent") ?? "");
       const wanted = safeRedirect(formData?.get("redirectTo") ?? new URL(request.url).searchParams.get("redirectTo"));
       const to = created || !user.name ? `/welcome?${new URLSearchParams({ redirectTo: wanted })}` : wanted;
-      throw redirect(to, { headers: { "Set-Cookie": session.setCookie } });
+      const headers = new Headers();
+      headers.append("Set-Cookie", session.setCookie);
+      headers.append("Set-Cookie", await clearSignInCookie());
+      throw redirect(to, { headers });
     },
   );
   authenticator = new Authenticator<void>().use(strategy);
@@ -152,7 +180,7 @@ async function runStrategy(request: Request): Promise<Response> {
 
 function formRequest(request: Request, fields: Record<string, string>): Request {
   const headers = new Headers();
-  for (const name of ["cookie", "user-agent", "origin", "x-forwarded-for", "x-real-ip"]) {
+  for (const name of ["cookie", "user-agent", "origin"]) {
     const value = request.headers.get(name);
     if (value) headers.set(name, value);
   }
@@ -185,7 +213,12 @@ function tooMany(values: SignInFormResult["values"], step: SignInFormResult["ste
  * Sends a code (new or again) to `email`, within the limits. Answers the strategy's redirect
  * (with its cookie), or 400/429/503 with the form values.
  */
-export async function requestCode(request: Request, input: { email: unknown; redirectTo: string }, db: Db = getDb()) {
+export async function requestCode(
+  request: Request,
+  input: { email: unknown; redirectTo: string },
+  context: unknown = {},
+  db: Db = getDb(),
+) {
   const env = getEnv();
   const typed = typeof input.email === "string" ? input.email : "";
   const values = { email: typed, redirectTo: input.redirectTo };
@@ -197,18 +230,22 @@ export async function requestCode(request: Request, input: { email: unknown; red
     );
   }
   const email = parsed.data;
-  const byAddress = await hitLimit(db, `sign-in-code:ip:${clientAddress(request)}`, env.SIGN_IN_CODES_PER_ADDRESS, CODE_REQUEST_WINDOW_S);
+  const byAddress = await hitLimit(db, `sign-in-code:ip:${clientAddress(context)}`, env.SIGN_IN_CODES_PER_ADDRESS, CODE_REQUEST_WINDOW_S);
   if (!byAddress.ok) return tooMany(values, "email", byAddress.retryAfterS, "Too many sign-in codes were asked for from this network.");
   const byEmail = await hitLimit(db, `sign-in-code:email:${email}`, env.SIGN_IN_CODES_PER_EMAIL, CODE_REQUEST_WINDOW_S);
   if (!byEmail.ok) return tooMany(values, "email", byEmail.retryAfterS, `Too many sign-in codes were sent to ${email}.`);
-  const answer = await runStrategy(formRequest(request, { email, redirectTo: input.redirectTo }));
+  const issuedId = crypto.randomUUID();
+  const answer = await runStrategy(formRequest(request, { email, redirectTo: input.redirectTo, [ISSUED_FIELD]: issuedId }));
   if (answer.status === 503) {
     return data<SignInFormResult>(
       { step: "email", values, error: "The e-mail with your code could not be sent. Try again in a moment." },
       { status: 503 },
     );
   }
-  return withRedirectTo(answer, input.redirectTo);
+  const sent = withRedirectTo(answer, input.redirectTo);
+  const headers = new Headers(sent.headers);
+  headers.append("Set-Cookie", await signInCookie().serialize(issuedId));
+  return new Response(null, { status: sent.status, headers });
 }
 
 /** Checks a typed code (or a magic link, when `code` is null) within the per-code cap. */
@@ -225,14 +262,33 @@ export async function verifyCode(request: Request, input: { code: string | null;
   if (!cookie.email || !cookie.jwe) {
     return data<SignInFormResult>({ step: "email", values, error: messages.noCode }, { status: 400 });
   }
-  const attempt = await recordCodeAttempt(db, cookie.jwe, cookie.email);
-  if (!attempt.ok) {
-    const error = attempt.reason === "used" ? messages.usedCode : messages.tooManyTries;
-    return data<SignInFormResult>({ step: "code", values, error }, { status: attempt.reason === "used" ? 400 : 429 });
+  const typed = input.code ?? codeFromMagicLinkToken(new URL(request.url).searchParams.get("t"));
+  const check = await checkIssuedCode(db, await readIssuedCodeId(request), typed, cookie.email);
+  if (!check.ok) {
+    if (check.reason === "unknown") return data<SignInFormResult>({ step: "email", values, error: messages.noCode }, { status: 400 });
+    if (check.reason === "used") return data<SignInFormResult>({ step: "code", values, error: messages.usedCode }, { status: 400 });
+    if (check.reason === "too_many") {
+      return data<SignInFormResult>(
+        { step: "code", values, error: messages.tooManyTries, retryAfterS: check.retryAfterS },
+        { status: 429, headers: { "Retry-After": String(check.retryAfterS) } },
+      );
+    }
+    // Wrong or expired: the strategy runs on and answers its own failure (it says which);
+    // its verify callback signs nobody in, because this request was not approved.
   }
   const strategyRequest =
-    input.code === null ? request : formRequest(request, { code: input.code, redirectTo: input.redirectTo });
-  return withRedirectTo(await runStrategy(strategyRequest), input.redirectTo);
+    input.code === null ? new Request(request.url, { headers: request.headers }) : formRequest(request, { code: input.code, redirectTo: input.redirectTo });
+  strategyRequest.headers.delete(APPROVAL_HEADER);
+  const key = check.ok ? crypto.randomUUID() : null;
+  if (key && check.ok) {
+    approved.set(key, check.email);
+    strategyRequest.headers.set(APPROVAL_HEADER, key);
+  }
+  try {
+    return withRedirectTo(await runStrategy(strategyRequest), input.redirectTo);
+  } finally {
+    if (key) approved.delete(key);
+  }
 }
 
 /** The strategy redirects to bare /sign-in; keep where the person was going. */

@@ -25,6 +25,7 @@ import {
 import { rigRoles } from "../auth/roles";
 import { cableUnits, defaultPreferences, lengthUnits, temperatureUnits } from "../schemas/account";
 import { socSources } from "../schemas/rig-state";
+import { READING_SOURCES } from "../schemas/readings";
 
 const createdAt = () => timestamp("created_at", { withTimezone: true }).notNull().defaultNow();
 const id = () => uuid("id").primaryKey().defaultRandom();
@@ -148,19 +149,6 @@ export const sessions = pgTable(
   (t) => [index("sessions_user_idx").on(t.userId), index("sessions_expires_idx").on(t.expiresAt)],
 );
 
-/**
- * Attempts against one e-mailed sign-in code. The code itself lives encrypted in the browser's
- * sign-in cookie; this row is keyed by a SHA-256 of that encrypted value, so the cap holds even
- * when a browser replays an old cookie, and a used code cannot be used again.
- */
-export const signInCodes = pgTable("sign_in_codes", {
-  codeHash: text("code_hash").primaryKey(),
-  email: text("email").notNull(),
-  attempts: integer("attempts").notNull().default(0),
-  consumedAt: timestamp("consumed_at", { withTimezone: true }),
-  createdAt: createdAt(),
-});
-
 /** Fixed-window request counters that survive a restart (e.g. sign-in codes per address). */
 export const rateLimitBuckets = pgTable("rate_limit_buckets", {
   key: text("key").primaryKey(),
@@ -255,7 +243,7 @@ export const switchChanges = pgTable(
 
 /* ------------------------------------------------------------ logbook and sync */
 
-export const readingSource = pgEnum("reading_source", ["hand", "csv", "device"]);
+export const readingSource = pgEnum("reading_source", READING_SOURCES);
 
 /**
  * One logbook reading. The id is generated on the phone (idempotency: the same reading sent
@@ -493,4 +481,24 @@ export const photos = pgTable(
     check("photos_on_something", sql`${t.readingId} IS NOT NULL OR ${t.partId} IS NOT NULL OR ${t.place} <> ''`),
     check("photos_reading_or_part", sql`${t.readingId} IS NULL OR (${t.partId} IS NULL AND ${t.place} = '')`),
   ],
+);
+
+/**
+ * Every sign-in code we e-mailed: the address it was sent to, an HMAC of the code (keyed with
+ * TOTP_SECRET and the row's id), when it stops working, how many tries it has had and when it
+ * was used. The browser holds only the row's random id (cookie `tilldawn_sign_in`); at verify
+ * this row, not the browser's cookies, decides who signs in (app/auth/sign-in.server.ts).
+ */
+export const issuedSignInCodes = pgTable(
+  "issued_sign_in_codes",
+  {
+    id: id(),
+    email: text("email").notNull(),
+    codeHash: text("code_hash").notNull(),
+    expiresAt: timestamp("expires_at", { withTimezone: true }).notNull(),
+    tries: integer("tries").notNull().default(0),
+    usedAt: timestamp("used_at", { withTimezone: true }),
+    createdAt: createdAt(),
+  },
+  (t) => [index("issued_sign_in_codes_created_idx").on(t.createdAt)],
 );

@@ -25,8 +25,19 @@ export function createRateLimiter(options: { limit: number; windowMs: number; no
   };
 }
 
-/** The client's address as the server sees it (the socket, or the proxy's X-Forwarded-For). */
-export function clientAddress(request: Request): string {
-  const forwarded = request.headers.get("x-forwarded-for");
-  return forwarded?.split(",")[0]?.trim() || request.headers.get("x-real-ip") || "local";
+/**
+ * The client's address, as the server (scripts/serve.mjs) took it from the connection: the
+ * socket's peer, or — only with TRUST_PROXY=n — the address n proxies back in
+ * X-Forwarded-For. Headers a client sends never decide it here. "unknown" when the app runs
+ * without that server (route tests that pass no context).
+ */
+export function clientAddress(context: unknown): string {
+  const address = (context as { clientAddress?: unknown } | null | undefined)?.clientAddress;
+  return typeof address === "string" && address ? address : "unknown";
+}
+
+/** True for a loopback peer (127.0.0.0/8, ::1, and IPv4-mapped 127.x). */
+export function isLoopback(address: string): boolean {
+  const a = address.replace(/^::ffff:/i, "");
+  return a === "::1" || /^127\.\d{1,3}\.\d{1,3}\.\d{1,3}$/.test(a);
 }

@@ -6,7 +6,8 @@
  */
 import type { TilldawnDb, LocalReading, OutboxEntry } from "./db.client";
 import { unpackReadings } from "./readings-store.client";
-import type { ChangeKind, ChangePayload, ChangeResult, NewReading, ReadingEdit } from "./protocol";
+import { READING_VALUE_KEYS, type NewReading, type ReadingEdit } from "~/schemas/readings";
+import type { ChangeKind, ChangePayload, ChangeResult } from "~/schemas/sync";
 
 export const newId = () => crypto.randomUUID();
 
@@ -67,7 +68,7 @@ export async function editReading(db: TilldawnDb, rigId: string, readingId: stri
     if (local) {
       const next: Partial<LocalReading> = { sync: "pending", updatedAt: Date.now() };
       if (set.takenAt !== undefined) next.takenAt = Date.parse(set.takenAt);
-      for (const key of ["bankVoltageV", "currentA", "socPct", "temperatureC", "solarWhToday"] as const) {
+      for (const key of READING_VALUE_KEYS) {
         if (set[key] !== undefined) next[key] = set[key];
       }
       if (set.note !== undefined) next.note = set.note;

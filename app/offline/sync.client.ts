@@ -13,7 +13,7 @@
  */
 import { acknowledge, countOutbox, nextBatch, onLocalChange } from "./outbox.client";
 import { getMeta, localDb, setMeta, windowDays, type LocalReading, type TilldawnDb } from "./db.client";
-import type { PulledChange, SyncResponse, WireReading } from "./protocol";
+import { syncResponseSchema, type PulledChange, type SyncResponse, type WireReading } from "~/schemas/sync";
 import { compactReadings, prunePackedDays, unpackReadings } from "./readings-store.client";
 
 export type SyncState = "idle" | "syncing" | "offline" | "error";
@@ -284,11 +284,15 @@ export class SyncRunner {
       throw new SyncError("refused_request", detail?.error?.message ?? `The server refused the sync (${response.status}).`);
     }
     if (!response.ok) throw new SyncError("server", `The server had a problem (${response.status}). Tilldawn will try again.`);
+    let answer: unknown;
     try {
-      return (await response.json()) as SyncResponse;
+      answer = await response.json();
     } catch {
       throw new SyncError("server", "The server's answer was cut off. Tilldawn will try again.");
     }
+    const parsed = syncResponseSchema.safeParse(answer);
+    if (!parsed.success) throw new SyncError("server", "The server's answer was not understood. Tilldawn will try again.");
+    return parsed.data;
   }
 
   private async applyPulled(rigId: string, changes: PulledChange[]) {

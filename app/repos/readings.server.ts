@@ -7,7 +7,7 @@
 import { and, asc, desc, eq, gt, gte, isNull, lt, lte, or, sql } from "drizzle-orm";
 import type { Db } from "~/db/db.server";
 import { readings } from "~/db/schema";
-import type { WireReading } from "~/offline/protocol";
+import type { WireReading } from "~/schemas/readings";
 
 export type ReadingRow = typeof readings.$inferSelect;
 

@@ -85,24 +85,32 @@ export async function getAsBuilt(db: Db, rigId: string) {
 }
 
 /**
- * Appends a revision to a branch. `expectedRevision` must be the branch's head: a stale number
- * throws StaleRevisionError and nothing is written (never a silent overwrite).
+ * Appends a revision to a branch of rig `rigId`. `expectedRevision` must be the branch's head:
+ * a stale number throws StaleRevisionError and nothing is written (never a silent overwrite).
+ * A branch of another rig throws BranchNotInRigError (checked in the same statement).
  */
 export async function saveRevision(
   db: Db,
-  input: { branchId: string; expectedRevision: number; document: RigModel; authorId: string | null; message?: string },
+  input: { rigId: string; branchId: string; expectedRevision: number; document: RigModel; authorId: string | null; message?: string },
 ) {
   return db.transaction(async (tx) => {
     const [moved] = await tx
       .update(modelBranches)
       .set({ headRevision: sql`${modelBranches.headRevision} + 1` })
-      .where(and(eq(modelBranches.id, input.branchId), eq(modelBranches.headRevision, input.expectedRevision)))
+      .where(
+        and(
+          eq(modelBranches.id, input.branchId),
+          eq(modelBranches.rigId, input.rigId),
+          eq(modelBranches.headRevision, input.expectedRevision),
+        ),
+      )
       .returning({ headRevision: modelBranches.headRevision });
     if (!moved) {
       const [branch] = await tx
         .select({ headRevision: modelBranches.headRevision })
         .from(modelBranches)
-        .where(eq(modelBranches.id, input.branchId));
+        .where(and(eq(modelBranches.id, input.branchId), eq(modelBranches.rigId, input.rigId)));
+      if (!branch) throw new BranchNotInRigError(input.branchId, input.rigId);
       throw new StaleRevisionError(input.branchId, input.expectedRevision, branch?.headRevision ?? null);
     }
     const [revision] = await tx
@@ -119,6 +127,16 @@ export async function saveRevision(
     if (!revision) throw new Error("revision insert returned nothing");
     return revision;
   });
+}
+
+/** The branch named is not one of this rig's (or does not exist). */
+export class BranchNotInRigError extends Error {
+  constructor(
+    readonly branchId: string,
+    readonly rigId: string,
+  ) {
+    super(`branch ${branchId} is not a branch of rig ${rigId}`);
+  }
 }
 
 /** Opens a draft branch starting from a copy of the as-built head. */

@@ -16,6 +16,8 @@ import { readings, syncChanges } from "~/db/schema";
 import { validateModel, type RigModel } from "~/engine/model";
 import { issuesOf } from "~/lib/http";
 import {
+  changeSchema,
+  isChangeKind,
   MAX_PULL,
   payloadSchemas,
   type ChangeKind,
@@ -24,11 +26,12 @@ import {
   type PulledChange,
   type SyncRequest,
   type SyncResponse,
-} from "~/offline/protocol";
-import { createDraft, getAsBuilt, saveRevision, StaleRevisionError, type RigRole } from "./rigs.server";
+} from "~/schemas/sync";
+import { BranchNotInRigError, createDraft, getAsBuilt, saveRevision, StaleRevisionError, type RigRole } from "./rigs.server";
 import { writeRigState } from "./rig-state.server";
 import { checkChangeAgainstModel } from "~/schemas/rig-state";
 import { toWire } from "./readings.server";
+import { READING_VALUE_KEYS } from "~/schemas/readings";
 
 type Tx = Parameters<Parameters<Db["transaction"]>[0]>[0];
 export type SyncActor = { userId: string; role: RigRole };
@@ -64,21 +67,34 @@ export async function applySync(db: Db, actor: SyncActor, request: SyncRequest, 
   const work: Parsed[] = [];
   const idsInBatch = new Set<string>();
 
-  request.changes.forEach((change, index) => {
+  request.changes.forEach((raw, index) => {
+    const id = changeIdOf(raw);
+    const envelope = changeSchema.safeParse(raw);
+    if (!envelope.success) {
+      results[index] = refused(id, "invalid", envelope.error.issues[0]?.message ?? "The change is not valid.", issuesOf(envelope.error));
+      return;
+    }
+    const change = envelope.data;
+    // Only an accepted change claims its id in this batch: a refused copy sent before the real
+    // one (same id) must not turn the real one into a "duplicate" that was never applied.
     if (idsInBatch.has(change.id)) {
       results[index] = { id: change.id, status: "duplicate" };
       return;
     }
-    idsInBatch.add(change.id);
     if (change.rigId !== request.rigId) {
       results[index] = refused(change.id, "wrong_rig", "This change belongs to another rig; send it with that rig's sync.");
       return;
     }
-    if (!(change.kind in payloadSchemas)) {
+    if (!isChangeKind(change.kind)) {
       results[index] = refused(change.id, "unsupported", `Tilldawn does not know the change "${change.kind}".`);
       return;
     }
-    const kind = change.kind as ChangeKind;
+    const kind = change.kind;
+    const nul = pathToNul(change.payload);
+    if (nul) {
+      results[index] = refused(change.id, "invalid", "Text in this change contains a NUL character, which cannot be stored.", [{ path: ["payload", ...nul], message: "NUL character" }]);
+      return;
+    }
     const checked = payloadSchemas[kind].safeParse(change.payload);
     if (!checked.success) {
       results[index] = refused(change.id, "invalid", checked.error.issues[0]?.message ?? "The change is not valid.", issuesOf(checked.error));
@@ -88,6 +104,7 @@ export async function applySync(db: Db, actor: SyncActor, request: SyncRequest, 
       results[index] = refused(change.id, "read_only", "Guests follow this rig read-only; the change was not saved.");
       return;
     }
+    idsInBatch.add(change.id);
     work.push({ index, id: change.id, kind, clientTime: new Date(change.clientTime), payload: checked.data });
   });
 
@@ -129,11 +146,14 @@ export async function applySync(db: Db, actor: SyncActor, request: SyncRequest, 
           let j = i;
           while (j < fresh.length && fresh[j]!.kind === "reading.add") j++;
           const run = fresh.slice(i, j);
-          for (let k = 0; k < run.length; k += INSERT_CHUNK) await addReadings(ctx, run.slice(k, k + INSERT_CHUNK), results);
+          for (let k = 0; k < run.length; k += INSERT_CHUNK) await addReadingsSafely(ctx, run.slice(k, k + INSERT_CHUNK), results);
           i = j;
         } else {
           const one = fresh[i]!;
-          results[one.index] = await applyOne(ctx, one);
+          results[one.index] = await inSavepoint(ctx, (inner) => applyOne(inner, one)).catch((error: unknown) => {
+            if (!isDataError(error)) throw error;
+            return refused(one.id, "invalid", "The change could not be stored (a value is out of range for the database).");
+          });
           i++;
         }
       }
@@ -141,11 +161,36 @@ export async function applySync(db: Db, actor: SyncActor, request: SyncRequest, 
 
     const pulled = await pullChanges(tx, request, idsInBatch);
     return {
-      results: results.map((r, i) => r ?? refused(request.changes[i]!.id, "invalid", "The change could not be read.")),
+      results: results.map((r, i) => r ?? refused(changeIdOf(request.changes[i]), "invalid", "The change could not be read.")),
       ...pulled,
       serverTime: receivedAt.toISOString(),
     };
   });
+}
+
+/** The id a phone gave a change, as far as it can be read (for the answer to a malformed one). */
+function changeIdOf(raw: unknown): string {
+  const id = typeof raw === "object" && raw !== null ? (raw as { id?: unknown }).id : undefined;
+  return typeof id === "string" ? id.slice(0, 100) : "";
+}
+
+/** The path to the first string (or key) holding a NUL character, or null. */
+export function pathToNul(value: unknown, path: (string | number)[] = [], depth = 0): (string | number)[] | null {
+  if (typeof value === "string") return value.includes("\u0000") ? path : null;
+  if (depth > 64 || typeof value !== "object" || value === null) return null;
+  if (Array.isArray(value)) {
+    for (let i = 0; i < value.length; i++) {
+      const found = pathToNul(value[i], [...path, i], depth + 1);
+      if (found) return found;
+    }
+    return null;
+  }
+  for (const [key, inner] of Object.entries(value)) {
+    if (key.includes("\u0000")) return [...path, key];
+    const found = pathToNul(inner, [...path, key], depth + 1);
+    if (found) return found;
+  }
+  return null;
 }
 
 type Ctx = { tx: Tx; actor: SyncActor; rigId: string; receivedAt: Date; model: () => Promise<RigModel | null> };
@@ -167,6 +212,37 @@ async function logChanges(
       ${sql.param(rows.map((r) => (r.payload === undefined ? null : JSON.stringify(r.payload))))}::jsonb[]
     )
     on conflict (change_id) do nothing`);
+}
+
+/**
+ * A PostgreSQL error about the data itself (class 22: out of range, bad encoding, bad time;
+ * class 23: a constraint), which validation should have caught: the change is refused alone.
+ */
+function isDataError(error: unknown): boolean {
+  const code = (error as { code?: unknown; cause?: { code?: unknown } })?.cause?.code ?? (error as { code?: unknown })?.code;
+  return typeof code === "string" && (code.startsWith("22") || code.startsWith("23"));
+}
+
+/** Runs `work` in a savepoint: a failure rolls back only what it did, not the batch. */
+function inSavepoint<T>(ctx: Ctx, work: (inner: Ctx) => Promise<T>): Promise<T> {
+  return ctx.tx.transaction((sp) => work({ ...ctx, tx: sp as unknown as Tx }));
+}
+
+/** A run of adds in one statement; if the database refuses the run, each add on its own. */
+async function addReadingsSafely(ctx: Ctx, run: Parsed[], results: (ChangeResult | undefined)[]) {
+  try {
+    await inSavepoint(ctx, (inner) => addReadings(inner, run, results));
+  } catch (error) {
+    if (!isDataError(error)) throw error;
+    for (const item of run) {
+      try {
+        await inSavepoint(ctx, (inner) => addReadings(inner, [item], results));
+      } catch (single) {
+        if (!isDataError(single)) throw single;
+        results[item.index] = refused(item.id, "invalid", "The reading could not be stored (a value is out of range for the database).");
+      }
+    }
+  }
 }
 
 async function addReadings(ctx: Ctx, run: Parsed[], results: (ChangeResult | undefined)[]) {
@@ -244,11 +320,7 @@ async function applyOne(ctx: Ctx, item: Parsed): Promise<ChangeResult> {
         const { set } = payload as ChangePayload<"reading.edit">;
         const next: Partial<typeof readings.$inferInsert> = { updatedAt: ctx.receivedAt };
         if (set.takenAt !== undefined) next.takenAt = new Date(set.takenAt);
-        if (set.bankVoltageV !== undefined) next.bankVoltageV = set.bankVoltageV;
-        if (set.currentA !== undefined) next.currentA = set.currentA;
-        if (set.socPct !== undefined) next.socPct = set.socPct;
-        if (set.temperatureC !== undefined) next.temperatureC = set.temperatureC;
-        if (set.solarWhToday !== undefined) next.solarWhToday = set.solarWhToday;
+        for (const key of READING_VALUE_KEYS) if (set[key] !== undefined) next[key] = set[key];
         if (set.note !== undefined) next.note = set.note;
         await tx.update(readings).set(next).where(eq(readings.id, row.id));
       }
@@ -281,6 +353,7 @@ async function applyOne(ctx: Ctx, item: Parsed): Promise<ChangeResult> {
       if (!branchId) return refused(item.id, "not_found", "This rig's model could not be found, so the change was not saved.");
       try {
         const saved = await saveRevision(db, {
+          rigId,
           branchId,
           expectedRevision: payload.baseRevision,
           document: checked.model,
@@ -290,10 +363,13 @@ async function applyOne(ctx: Ctx, item: Parsed): Promise<ChangeResult> {
         await logChanges(tx, [{ ...base, kind: "model.save", entityId: branchId }]);
         return { id: item.id, status: "applied", detail: { branchId, revision: saved.revision } };
       } catch (error) {
+        if (error instanceof BranchNotInRigError) {
+          return refused(item.id, "not_found", "That model branch is not one of this rig's, so the change was not saved.");
+        }
         if (!(error instanceof StaleRevisionError)) throw error;
         // The as-built moved while this phone was offline: keep the edit as a draft to compare.
         const draft = await createDraft(db, { rigId, name: `Offline edit ${item.clientTime.toISOString().slice(0, 16).replace("T", " ")}`, authorId: actor.userId });
-        const saved = await saveRevision(db, { branchId: draft.id, expectedRevision: 1, document: checked.model, authorId: actor.userId, message: payload.message ?? "Saved offline" });
+        const saved = await saveRevision(db, { rigId, branchId: draft.id, expectedRevision: 1, document: checked.model, authorId: actor.userId, message: payload.message ?? "Saved offline" });
         await logChanges(tx, [{ ...base, kind: "model.save", entityId: draft.id }]);
         return { id: item.id, status: "applied", detail: { becameDraft: true, branchId: draft.id, revision: saved.revision } };
       }

@@ -11,6 +11,7 @@ import { readIntent, type FormAnswer } from "~/lib/forms";
 import { deleteAccount, RigSetChangedError, soleOwnedRigs } from "~/repos/members.server";
 import { savePreferences, setName } from "~/repos/users.server";
 import { ACCOUNT_INTENT, deleteAccountFormSchema, preferencesFormSchema, profileFormSchema } from "~/schemas/account";
+import { readForm } from "~/lib/http";
 
 export type AccountIntent = (typeof ACCOUNT_INTENT)[keyof typeof ACCOUNT_INTENT];
 export type AccountAnswer = FormAnswer<AccountIntent> & { soleRigs?: { id: string; name: string }[] };
@@ -20,7 +21,7 @@ const answer = (status: number, body: AccountAnswer) => data<AccountAnswer>(body
 export async function accountAction({ request }: Route.ActionArgs) {
   const user = await requireUser(request);
   const db = getDb();
-  const form = await request.formData();
+  const form = await readForm(request);
   switch (readIntent(form, ACCOUNT_INTENT)) {
     case ACCOUNT_INTENT.profile: {
       const submission = parseWithZod(form, { schema: profileFormSchema });

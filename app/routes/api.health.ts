@@ -11,8 +11,10 @@ export async function loader() {
       { headers: { "cache-control": "no-store" } },
     );
   } catch (error) {
+    // The cause goes to the server's log, never to the caller (it can carry SQL and addresses).
+    console.error("[health] database check failed:", (error as Error).message);
     return Response.json(
-      { status: "degraded", database: { status: "down", message: (error as Error).message } },
+      { status: "degraded", database: { status: "down" } },
       { status: 503, headers: { "cache-control": "no-store" } },
     );
   }

@@ -15,7 +15,7 @@ export const action = protectedAction(async ({ request, params }: Route.ActionAr
   if (request.method !== "POST") return apiError(405, "method_not_allowed", "Use POST.", undefined, { allow: "POST" });
   const db = getDb();
   const access = await requireRigRole(request, params.rigId, "owner", db);
-  const body = await readJson(request);
+  const body = await readJson(request, 64 * 1024);
   if (!body.ok) return body.response;
   const parsed = modeEditSchema.safeParse(body.body);
   if (!parsed.success) return badRequest("invalid_mode", parsed.error.issues[0]?.message ?? "The mode is not valid.", issuesOf(parsed.error));

@@ -44,7 +44,7 @@ export const action = protectedAction(async ({ request, params }: Route.ActionAr
   if (request.method !== "POST") return apiError(405, "method_not_allowed", "Use POST.", undefined, { allow: "GET, POST" });
   const db = getDb();
   const access = await requireRigRole(request, params.rigId, "guest", db);
-  const body = await readJson(request);
+  const body = await readJson(request, 64 * 1024);
   if (!body.ok) return body.response;
   const parsed = bodySchema.safeParse(body.body);
   if (!parsed.success) return apiError(400, "invalid_subscription", "The subscription does not have the expected shape.", issuesOf(parsed.error));

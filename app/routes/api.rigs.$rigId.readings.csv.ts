@@ -2,8 +2,19 @@ import type { Route } from "./+types/api.rigs.$rigId.readings.csv";
 import Papa from "papaparse";
 import { requireRigRole } from "~/auth/guards.server";
 import { getDb } from "~/db/db.server";
-import { badRequest } from "~/lib/http";
+import { z } from "zod";
+import { apiError, issuesOf } from "~/lib/http";
 import { walkReadings } from "~/repos/readings.server";
+
+/** A date (2025-10-01) or a time with its offset, 1970 to 2200. */
+const dateOrTime = (what: string) =>
+  z
+    .union([z.iso.date(), z.iso.datetime({ offset: true })], { error: `Give ${what} as an ISO date, e.g. 2025-10-01` })
+    .refine((s) => {
+      const t = Date.parse(s);
+      return t >= 0 && t <= Date.UTC(2200, 0, 1);
+    }, `${what} is outside 1970–2200`);
+const rangeSchema = z.object({ from: dateOrTime("from").optional(), to: dateOrTime("to").optional() });
 
 const CSV_COLUMNS = ["taken_at", "bank_voltage_v", "current_a", "soc_pct", "temperature_c", "solar_wh_today", "note", "source", "id"];
 
@@ -17,13 +28,10 @@ const safeNote = (note: string) => (/^[=+\-@\t\r]/.test(note) ? `'${note}` : not
 export async function loader({ request, params }: Route.LoaderArgs) {
   const db = getDb();
   const access = await requireRigRole(request, params.rigId, "guest", db);
-  const url = new URL(request.url);
-  const from = url.searchParams.get("from");
-  const to = url.searchParams.get("to");
-  const range = { from: from ? new Date(from) : undefined, to: to ? new Date(to) : undefined };
-  if ((range.from && isNaN(range.from.getTime())) || (range.to && isNaN(range.to.getTime()))) {
-    return badRequest("invalid_range", "Give from and to as ISO dates, e.g. 2025-10-01.");
-  }
+  // Checked before the stream starts: once the 200 is sent, an error can only cut the file.
+  const parsed = rangeSchema.safeParse(Object.fromEntries(new URL(request.url).searchParams));
+  if (!parsed.success) return apiError(400, "invalid_range", "Give from and to as ISO dates, e.g. 2025-10-01.", issuesOf(parsed.error));
+  const range = { from: parsed.data.from ? new Date(parsed.data.from) : undefined, to: parsed.data.to ? new Date(parsed.data.to) : undefined };
   const pages = walkReadings(db, access.rig.id, range);
   const encoder = new TextEncoder();
   const stream = new ReadableStream<Uint8Array>({

@@ -3,18 +3,19 @@ import { z } from "zod";
 import { requireRigRole } from "~/auth/guards.server";
 import { getDb } from "~/db/db.server";
 import { badRequest, issuesOf } from "~/lib/http";
+import { queryTime } from "~/schemas/readings";
 import { listReadings, readingSeries, toWire } from "~/repos/readings.server";
 
 const DAY_MS = 86_400_000;
 
 const querySchema = z.object({
-  from: z.iso.datetime({ offset: true }).optional(),
-  to: z.iso.datetime({ offset: true }).optional(),
+  from: queryTime("from").optional(),
+  to: queryTime("to").optional(),
   /** "series": chart points (downsampled on the server for long ranges); "list": rows. */
   view: z.enum(["list", "series"]).default("list"),
   points: z.coerce.number().int().min(10).max(2000).default(600),
   limit: z.coerce.number().int().min(1).max(500).default(50),
-  beforeAt: z.iso.datetime({ offset: true }).optional(),
+  beforeAt: queryTime("beforeAt").optional(),
   beforeId: z.uuid().optional(),
 });
 

@@ -40,7 +40,7 @@ export const action = protectedAction(async ({ request, params }: Route.ActionAr
   if (request.method !== "POST") return apiError(405, "method_not_allowed", "Use POST.", undefined, { allow: "GET, POST" });
   const db = getDb();
   const access = await requireRigRole(request, params.rigId, "crew", db);
-  const body = await readJson(request);
+  const body = await readJson(request, 64 * 1024);
   if (!body.ok) return body.response;
   const parsed = stateWriteSchema.safeParse(body.body);
   if (!parsed.success) return badRequest("invalid_change", "The change does not have the expected shape.", issuesOf(parsed.error));

@@ -2,7 +2,7 @@ import type { Route } from "./+types/api.rigs.photos.$photoId";
 import { protectedAction } from "~/auth/csrf.server";
 import { requireRigRole } from "~/auth/guards.server";
 import { getDb } from "~/db/db.server";
-import { apiError } from "~/lib/http";
+import { apiError, readForm, readJson } from "~/lib/http";
 import { isUuid } from "~/lib/ids";
 import { mayDeletePhoto } from "~/photos/permissions";
 import { removePhoto } from "~/photos/upload.server";
@@ -70,11 +70,12 @@ async function intentOf(request: Request): Promise<string | null> {
   const type = request.headers.get("content-type") ?? "";
   try {
     if (type.includes("application/json")) {
-      const body = (await request.json()) as { intent?: unknown } | null;
+      const read = await readJson(request, 4 * 1024);
+      const body = read.ok ? (read.body as { intent?: unknown } | null) : null;
       return typeof body?.intent === "string" ? body.intent : null;
     }
     if (type.includes("form")) {
-      const value = (await request.formData()).get("intent");
+      const value = (await readForm(request, 4 * 1024)).get("intent");
       return typeof value === "string" ? value : null;
     }
   } catch {

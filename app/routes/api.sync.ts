@@ -3,13 +3,10 @@ import { protectedAction } from "~/auth/csrf.server";
 import { requireRigRole } from "~/auth/guards.server";
 import { getDb } from "~/db/db.server";
 import { apiError, issuesOf, readJson } from "~/lib/http";
-import { syncRequestSchema } from "~/offline/protocol";
+import { MAX_SYNC_BYTES, syncRequestSchema } from "~/schemas/sync";
 import { applySync } from "~/repos/sync.server";
 import { requestEvaluation } from "~/alerts/queue.server";
 import { getEnv } from "~/env.server";
-
-/** Bodies above this are refused before they are read (1,000 changes fit in well under it). */
-const MAX_BODY_BYTES = 4 * 1024 * 1024;
 
 /**
  * POST /api/sync — a phone's batch of changes for one rig. Answers per change `applied`,
@@ -19,9 +16,8 @@ const MAX_BODY_BYTES = 4 * 1024 * 1024;
 export const action = protectedAction(async ({ request }: Route.ActionArgs) => {
   const receivedAt = new Date();
   if (request.method !== "POST") return apiError(405, "method_not_allowed", "Use POST.", undefined, { allow: "POST" });
-  const length = Number(request.headers.get("content-length") ?? 0);
-  if (length > MAX_BODY_BYTES) return apiError(413, "too_large", "Send the changes in smaller batches (at most 1,000 per request).");
-  const body = await readJson(request);
+  // The limit is counted while the body streams in (a chunked body has no Content-Length).
+  const body = await readJson(request, MAX_SYNC_BYTES);
   if (!body.ok) return body.response;
   const parsed = syncRequestSchema.safeParse(body.body);
   if (!parsed.success) return apiError(400, "invalid_sync", "The sync request does not have the expected shape.", issuesOf(parsed.error));

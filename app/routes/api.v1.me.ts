@@ -12,6 +12,6 @@ export async function loader({ request }: Route.LoaderArgs) {
       user: { id: user.id, email: user.email, name: user.name, preferences: user.preferences },
       rigs: rigs.map(({ id, name, role }) => ({ id, name, role })),
     },
-    { headers: { "cache-control": "no-store" } },
+    { headers: { "cache-control": "private, no-store" } },
   );
 }

@@ -7,11 +7,11 @@ import { parseProjectionRequest, runProjectionRequest } from "~/engine/api";
 const limiter = createRateLimiter({ limit: getEnv().PROJECTION_RATE_PER_MINUTE, windowMs: 60_000 });
 
 /** POST /api/v1/projection — stateless: a rig model and its state in, every engine result out. */
-export async function action({ request }: Route.ActionArgs) {
+export async function action({ request, context }: Route.ActionArgs) {
   if (request.method !== "POST") {
     return apiError(405, "method_not_allowed", "Use POST.", undefined, { allow: "POST" });
   }
-  const gate = limiter.hit(clientAddress(request));
+  const gate = limiter.hit(clientAddress(context));
   if (!gate.ok) {
     return apiError(429, "rate_limited", `Too many projections; try again in ${gate.retryAfterS} s.`, undefined, {
       "retry-after": String(gate.retryAfterS),

@@ -47,7 +47,7 @@ export async function action({ request, params }: Route.ActionArgs) {
   const hit = perToken.hit(device.id);
   if (!hit.ok) return apiError(429, "rate_limited", `This device sent too many requests; try again in ${hit.retryAfterS} s.`, undefined, { "retry-after": String(hit.retryAfterS) });
 
-  const body = await readJson(request);
+  const body = await readJson(request, 2 * 1024 * 1024);
   if (!body.ok) return body.response;
   const envelope = deviceEnvelopeSchema.safeParse(body.body);
   if (!envelope.success) return apiError(400, "invalid_body", "Send one reading, or { \"readings\": [ … ] }.", issuesOf(envelope.error));

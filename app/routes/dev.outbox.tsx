@@ -1,14 +1,19 @@
 import { notFound } from "~/lib/http";
 import type { Route } from "./+types/dev.outbox";
 import { getEnv } from "~/env.server";
+import { clientAddress, isLoopback } from "~/lib/rate-limit.server";
 import { extractSignIn, readOutbox } from "~/mail/outbox.server";
 
 /**
  * GET /dev/outbox — the e-mails the local SMTP fake received, newest first. Only while the app
- * sends to the fake (SMTP_URL unset); with real SMTP settings it answers 404.
+ * sends to the fake (SMTP_URL unset) and to loopback clients; otherwise it answers 404.
  */
-export async function loader() {
-  if (!getEnv().devOutbox) throw notFound("There is nothing at this address.");
+export async function loader({ context }: Route.LoaderArgs) {
+  // Only while mail goes to the fake, and only to a client on this machine (the socket's
+  // address as the server saw it; a Host or forwarding header proves nothing).
+  if (!getEnv().devOutbox || !isLoopback(clientAddress(context))) {
+    throw notFound("There is nothing at this address.");
+  }
   const messages = await readOutbox(50);
   return {
     messages: messages.map((m) => ({ ...m, ...extractSignIn(m.text) })),

@@ -12,6 +12,7 @@ import { getPreferences, getRigRules, listAlertLog, savePreferences, saveRigRule
 import { createDeviceToken, listDeviceTokens, revokeDeviceToken } from "~/repos/devices.server";
 import { getAsBuilt } from "~/repos/rigs.server";
 import { validateModel } from "~/engine/model";
+import { readForm } from "~/lib/http";
 
 /** GET /rigs/:rigId/alerts — "Warn me", one's own alert choices, the alert log (every member); rules and device tokens (owners). */
 export async function loader({ request, params }: Route.LoaderArgs) {
@@ -46,7 +47,7 @@ const hhmm = (v: FormDataEntryValue | null): number | null => {
 };
 
 export const action = protectedAction(async ({ request, params }: Route.ActionArgs) => {
-  const form = await request.formData();
+  const form = await readForm(request);
   const intent = String(form.get("intent") ?? "");
   const ownerIntents = ["rules", "device-create", "device-revoke"];
   const { user, rig } = await requireRigRole(request, params.rigId, ownerIntents.includes(intent) ? "owner" : "guest");

@@ -5,7 +5,7 @@ import { fmtTime } from "~/components/log/format";
 import { ReadingPhotos } from "~/components/photos/reading-photos";
 import { getMeta, localDb } from "~/offline/db.client";
 import { deleteReading, editReading } from "~/offline/outbox.client";
-import { READING_VALUE_KEYS, type ReadingEdit } from "~/offline/protocol";
+import { READING_VALUE_KEYS, type ReadingEdit } from "~/schemas/readings";
 import { findReading } from "~/offline/readings-store.client";
 
 /** Edit or delete one reading (its author or an owner), on the phone first. */

@@ -15,13 +15,14 @@ import { MailError, sendMail } from "~/mail/mailer.server";
 import { inviteMail } from "~/mail/templates";
 import { changeRole, createInvite, MembershipError, removeMember, revokeInvite } from "~/repos/members.server";
 import { inviteFormSchema, MEMBERS_INTENT, removeFormSchema, revokeFormSchema, roleFormSchema, type MembersIntent } from "~/schemas/members";
+import { readForm } from "~/lib/http";
 
 export type MembersAnswer = FormAnswer<MembersIntent>;
 
 const answer = (status: number, body: MembersAnswer) => data<MembersAnswer>(body, { status });
 
 export async function membersAction({ request, params }: Route.ActionArgs) {
-  const form = await request.formData();
+  const form = await readForm(request);
   const intent = readIntent(form, MEMBERS_INTENT);
   // Leaving is for every member; everything else here is for owners.
   const { user, rig } = await requireRigRole(request, params.rigId, intent === MEMBERS_INTENT.leave ? "guest" : "owner");

@@ -11,6 +11,7 @@ import { fieldProps } from "~/lib/forms";
 import { createRigFormSchema } from "~/schemas/rigs";
 import { RigList } from "~/components/account/rig-list";
 import { Button, Card, Field } from "~/components/ui/form";
+import { readForm } from "~/lib/http";
 
 /** GET /rigs — the rigs this person is on, with their role; POST creates one they own. */
 export async function loader({ request }: Route.LoaderArgs) {
@@ -21,7 +22,7 @@ export async function loader({ request }: Route.LoaderArgs) {
 
 export const action = protectedAction(async ({ request }: Route.ActionArgs) => {
   const user = await requireUser(request);
-  const submission = parseWithZod(await request.formData(), { schema: createRigFormSchema });
+  const submission = parseWithZod(await readForm(request), { schema: createRigFormSchema });
   if (submission.status !== "success") return data({ result: submission.reply() }, { status: 400 });
   const { name } = submission.value;
   const { rig } = await createRig(getDb(), { name, ownerId: user.id, document: starterModel({ name }), message: "New rig" });

@@ -4,7 +4,9 @@ import { protectedAction } from "~/auth/csrf.server";
 import { getUser, safeRedirect } from "~/auth/session.server";
 import { readCodeCookie, requestCode, verifyCode, type SignInFormResult } from "~/auth/sign-in.server";
 import { CODE_VALID_MINUTES } from "~/auth/constants";
+import { clearSignInCookie } from "~/auth/issued-codes.server";
 import { Button, Field, Notice } from "~/components/ui/form";
+import { apiError, readForm } from "~/lib/http";
 
 export async function loader({ request }: Route.LoaderArgs) {
   const url = new URL(request.url);
@@ -19,22 +21,25 @@ export async function loader({ request }: Route.LoaderArgs) {
   };
 }
 
-export const action = protectedAction(async ({ request }: Route.ActionArgs) => {
-  const form = await request.formData();
+export const action = protectedAction(async ({ request, context }: Route.ActionArgs) => {
+  const form = await readForm(request);
   const redirectTo = safeRedirect(form.get("redirectTo"));
   switch (form.get("intent")) {
     case "send":
-      return requestCode(request, { email: form.get("email"), redirectTo });
+      return requestCode(request, { email: form.get("email"), redirectTo }, context);
     case "resend":
-      return requestCode(request, { email: readCodeCookie(request).email ?? "", redirectTo });
+      return requestCode(request, { email: readCodeCookie(request).email ?? "", redirectTo }, context);
     case "verify":
       return verifyCode(request, { code: String(form.get("code") ?? ""), redirectTo });
     case "restart":
       return redirect(`/sign-in?${new URLSearchParams({ redirectTo })}`, {
-        headers: { "Set-Cookie": "_totp=; Path=/; Max-Age=0; HttpOnly; SameSite=Lax" },
+        headers: [
+          ["Set-Cookie", "_totp=; Path=/; Max-Age=0; HttpOnly; SameSite=Lax"],
+          ["Set-Cookie", await clearSignInCookie()],
+        ],
       });
     default:
-      return new Response("Unknown sign-in step.", { status: 400 });
+      throw apiError(400, "unknown_intent", "Unknown sign-in step: send intent send, resend, verify or restart.");
   }
 });
 

@@ -9,6 +9,7 @@ import { setName } from "~/repos/users.server";
 import { fieldProps } from "~/lib/forms";
 import { profileFormSchema } from "~/schemas/account";
 import { Button, Field } from "~/components/ui/form";
+import { readForm } from "~/lib/http";
 
 /** GET /welcome — asked once, after a first sign-in: the name the crew will see. */
 export async function loader({ request }: Route.LoaderArgs) {
@@ -20,7 +21,7 @@ export async function loader({ request }: Route.LoaderArgs) {
 
 export const action = protectedAction(async ({ request }: Route.ActionArgs) => {
   const user = await requireUser(request);
-  const form = await request.formData();
+  const form = await readForm(request);
   const redirectTo = safeRedirect(form.get("redirectTo"));
   const submission = parseWithZod(form, { schema: profileFormSchema });
   if (submission.status !== "success") return data({ result: submission.reply() }, { status: 400 });

@@ -9,7 +9,11 @@
 import { z } from "zod";
 
 const id = z.string().min(1).max(100);
-const isoTime = z.iso.datetime({ offset: true });
+/** A time with its offset, 2000 to a year ahead (PostgreSQL refuses year 0000; issue 9). */
+const isoTime = z.iso
+  .datetime({ offset: true })
+  .refine((s) => Date.parse(s) >= Date.UTC(2000, 0, 1), "The time is before the year 2000")
+  .refine((s) => Date.parse(s) <= Date.now() + 366 * 86_400_000, "The time is too far in the future");
 
 export const latDeg = z.number().finite().min(-90, "Latitude is between −90 and 90°").max(90, "Latitude is between −90 and 90°");
 export const lonDeg = z.number().finite().min(-180, "Longitude is between −180 and 180°").max(180, "Longitude is between −180 and 180°");

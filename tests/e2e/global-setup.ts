@@ -29,7 +29,7 @@ export default async function setup() {
     PHOTOS_S3_PORT: String(s3.port),
     PHOTOS_S3_DIR: s3.directory,
   };
-  const server = spawn(`${root}node_modules/.bin/react-router-serve`, ["./build/server/index.js"], {
+  const server = spawn(process.execPath, [`${root}scripts/serve.mjs`, "./build/server/index.js"], {
     cwd: root,
     env: { ...process.env, NODE_ENV: "production", HOST: "127.0.0.1", PORT: port, APP_URL: baseUrl, ...fakesEnv },
     stdio: ["ignore", "ignore", "inherit"],

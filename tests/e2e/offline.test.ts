@@ -202,7 +202,7 @@ describe("Offline first in Chromium", () => {
 
 async function startServer(port: number): Promise<ChildProcess> {
   const origin = `http://127.0.0.1:${port}`;
-  const child = spawn(`${root}node_modules/.bin/react-router-serve`, ["./build/server/index.js"], {
+  const child = spawn(process.execPath, [`${root}scripts/serve.mjs`, "./build/server/index.js"], {
     cwd: root,
     env: { ...process.env, NODE_ENV: "production", PORT: String(port), APP_URL: origin },
     stdio: ["ignore", "ignore", "inherit"],

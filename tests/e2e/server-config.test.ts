@@ -6,7 +6,7 @@ import { describe, expect, test } from "vitest";
 const root = fileURLToPath(new URL("../..", import.meta.url));
 
 function serve(env: Record<string, string>) {
-  return spawn(`${root}node_modules/.bin/react-router-serve`, ["./build/server/index.js"], {
+  return spawn(process.execPath, [`${root}scripts/serve.mjs`, "./build/server/index.js"], {
     cwd: root,
     env: { ...process.env, NODE_ENV: "production", HOST: "127.0.0.1", ...env },
     stdio: ["ignore", "pipe", "pipe"],

@@ -38,14 +38,18 @@ export type CallOptions = {
   form?: Record<string, string>;
   /** A JSON body; implies POST. */
   json?: unknown;
+  /** A raw body (string or stream), sent with the headers given; implies POST. */
+  body?: BodyInit | null;
   /** The Origin header; defaults to our own for POST. Pass null to send none. */
   origin?: string | null;
   headers?: Record<string, string>;
   params?: Record<string, string>;
+  /** The load context the server hands every loader and action (e.g. the client's address). */
+  context?: Record<string, unknown>;
 };
 
 export function makeRequest(options: CallOptions): Request {
-  const method = options.method ?? (options.form || options.json !== undefined ? "POST" : "GET");
+  const method = options.method ?? (options.form || options.json !== undefined || options.body !== undefined ? "POST" : "GET");
   const headers = new Headers(options.headers);
   if (options.cookie) headers.set("cookie", options.cookie);
   const origin = options.origin === undefined ? (method === "GET" ? null : TEST_ORIGIN) : options.origin;
@@ -57,8 +61,10 @@ export function makeRequest(options: CallOptions): Request {
   } else if (options.json !== undefined) {
     headers.set("content-type", "application/json");
     body = JSON.stringify(options.json);
+  } else if (options.body !== undefined) {
+    body = options.body ?? undefined;
   }
-  return new Request(new URL(options.path, TEST_ORIGIN), { method, headers, body });
+  return new Request(new URL(options.path, TEST_ORIGIN), { method, headers, body, duplex: "half" } as RequestInit);
 }
 
 export type CallResult = { status: number; location: string | null; headers: Headers; body: unknown };
@@ -69,7 +75,7 @@ type RouteFunction = (args: { request: Request; params: Record<string, string>; 
 export async function callRoute(fn: unknown, options: CallOptions): Promise<CallResult> {
   const request = makeRequest(options);
   try {
-    return await normalise(await (fn as RouteFunction)({ request, params: options.params ?? {}, context: {} }));
+    return await normalise(await (fn as RouteFunction)({ request, params: options.params ?? {}, context: options.context ?? {} }));
   } catch (thrown) {
     if (thrown instanceof Response || isDataWithInit(thrown)) return normalise(thrown);
     throw thrown;

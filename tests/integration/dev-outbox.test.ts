@@ -38,7 +38,7 @@ describe("The local mail fake and the development outbox", () => {
     await mailer.sendMail(
       templates.signInCodeMail({ to: "ada@juniper.example", code: "482913", magicLink: "http://127.0.0.1:3000/auth/verify?t=abc", validMinutes: 10 }),
     );
-    const page = await callRoute(outboxRoute.loader, { path: "/dev/outbox" });
+    const page = await callRoute(outboxRoute.loader, { path: "/dev/outbox", context: { clientAddress: "127.0.0.1" } });
     expect(page.status).toBe(200);
     const [message] = (page.body as { messages: Array<{ to: string[]; subject: string; code: string; links: string[]; text: string; html: string }> }).messages;
     expect(message).toMatchObject({
@@ -54,8 +54,24 @@ describe("The local mail fake and the development outbox", () => {
   test("with real SMTP settings the outbox page answers 404", async () => {
     vi.stubEnv("SMTP_URL", "smtp://mailer.example.net:587");
     const { outboxRoute } = await freshModules();
-    const page = await callRoute(outboxRoute.loader, { path: "/dev/outbox" });
+    const page = await callRoute(outboxRoute.loader, { path: "/dev/outbox", context: { clientAddress: "127.0.0.1" } });
     expect(page.status).toBe(404);
+  });
+
+  test("the outbox answers only loopback clients, whatever their headers say (finding 7)", async () => {
+    vi.stubEnv("DEV_OUTBOX_DIR", dir);
+    const { outboxRoute } = await freshModules();
+    for (const clientAddress of ["192.168.1.20", "203.0.113.7", "::ffff:10.0.0.2", undefined]) {
+      const page = await callRoute(outboxRoute.loader, {
+        path: "/dev/outbox",
+        headers: { "x-forwarded-for": "127.0.0.1", "x-real-ip": "127.0.0.1", host: "127.0.0.1" },
+        context: { clientAddress },
+      });
+      expect(page.status, String(clientAddress)).toBe(404);
+    }
+    for (const clientAddress of ["127.0.0.1", "::1", "::ffff:127.0.0.1"]) {
+      expect((await callRoute(outboxRoute.loader, { path: "/dev/outbox", context: { clientAddress } })).status).toBe(200);
+    }
   });
 
   test("when the mail server cannot be reached, asking for a code answers 503 and keeps the address", async () => {
@@ -65,7 +81,7 @@ describe("The local mail fake and the development outbox", () => {
     const res = await callRoute(signIn.action, {
       path: "/sign-in",
       form: { intent: "send", email: `unreachable-${crypto.randomUUID().slice(0, 6)}@example.net` },
-      headers: { "x-forwarded-for": `203.0.113.${Math.floor(Math.random() * 200)}` },
+      context: { clientAddress: `203.0.113.${Math.floor(Math.random() * 200)}` },
     });
     expect(res.status).toBe(503);
     expect(res.body).toMatchObject({ error: expect.stringMatching(/could not be sent/) });

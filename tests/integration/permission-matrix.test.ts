@@ -118,6 +118,7 @@ describe("The permission matrix", () => {
             method,
             cookie: await cookieOf(actor),
             params: paramsOf(entry.path, url),
+            context: { clientAddress: "127.0.0.1" },
             form: method === "POST" && !spec.json ? (spec.form?.(ctx) ?? {}) : undefined,
             json: method === "POST" && spec.json ? spec.json(ctx) : undefined,
           });

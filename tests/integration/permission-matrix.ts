@@ -14,6 +14,8 @@
  * Every POST row with `csrf` (the default) is also sent by the owner from another origin and
  * must answer 403.
  */
+import { juniperModel } from "../fixtures/juniper";
+
 export const actors = ["anonymous", "stranger", "guest", "crew", "owner"] as const;
 export type Actor = (typeof actors)[number];
 export type Outcome = "ok" | "signin" | "forbidden" | "notFound" | "notAllowed";
@@ -130,3 +132,80 @@ export const permissionMatrix: Record<string, RouteRow> = {
   },
   "routes/not-found.tsx": { GET: { expect: "notFound" } },
 };
+
+/**
+ * Cross-rig ids (issue 9, finding 3): every write, with an id that belongs to ANOTHER rig in
+ * each field that names something. The person is the owner of the rig in the URL (and, in a
+ * second pass, an owner of the other rig too: the write still must not cross over). Each case
+ * must leave the other rig exactly as it was (model branches and revisions, readings, members,
+ * invitations, change log). EVERY new write route adds its id fields here.
+ */
+export type CrossRigContext = {
+  /** The rig in the URL / the sync envelope; the actor owns it. */
+  rigId: string;
+  branchId: string;
+  /** Ids that belong to the other rig. */
+  other: { rigId: string; branchId: string; readingId: string; inviteId: string; memberUserId: string };
+};
+
+export type CrossRigCase = {
+  name: string;
+  /** The route module (a key of permissionMatrix). */
+  file: string;
+  path: (ctx: CrossRigContext) => string;
+  params: (ctx: CrossRigContext) => Record<string, string>;
+  form?: (ctx: CrossRigContext) => Record<string, string>;
+  json?: (ctx: CrossRigContext) => unknown;
+};
+
+const syncChange = (ctx: CrossRigContext, kind: string, payload: unknown, rigId = ctx.rigId) => ({
+  rigId: ctx.rigId,
+  cursor: null,
+  changes: [{ id: crypto.randomUUID(), kind, rigId, clientTime: new Date().toISOString(), payload }],
+});
+const syncPath = { file: "routes/api.sync.ts", path: () => "/api/sync", params: () => ({}) };
+const aReading = (id: string) => ({ id, takenAt: new Date(Date.now() - 60_000).toISOString(), bankVoltageV: 12.9, note: "cross-rig" });
+
+export const crossRigCases: CrossRigCase[] = [
+  { name: "sync model.save naming the other rig's branch", ...syncPath, json: (c) => syncChange(c, "model.save", { branchId: c.other.branchId, baseRevision: 1, document: { ...juniperModel, name: "Taken over" } }) },
+  { name: "sync reading.edit naming the other rig's reading", ...syncPath, json: (c) => syncChange(c, "reading.edit", { readingId: c.other.readingId, set: { note: "taken over" } }) },
+  { name: "sync reading.delete naming the other rig's reading", ...syncPath, json: (c) => syncChange(c, "reading.delete", { readingId: c.other.readingId }) },
+  { name: "sync reading.add reusing the other rig's reading id", ...syncPath, json: (c) => syncChange(c, "reading.add", { reading: aReading(c.other.readingId) }) },
+  { name: "sync change whose rigId is the other rig, in this rig's envelope", ...syncPath, json: (c) => syncChange(c, "reading.add", { reading: aReading(crypto.randomUUID()) }, c.other.rigId) },
+  { name: "sync state.write in a change for the other rig", ...syncPath, json: (c) => syncChange(c, "state.write", { baseVersion: 0, change: { kind: "place", place: { kind: "home" } } }, c.other.rigId) },
+  {
+    name: "members: withdraw the other rig's invitation",
+    file: "routes/rig.members.tsx",
+    path: (c) => `/rigs/${c.rigId}/members`,
+    params: (c) => ({ rigId: c.rigId }),
+    form: (c) => ({ intent: "revoke", inviteId: c.other.inviteId }),
+  },
+  {
+    name: "members: change the role of a member of the other rig only",
+    file: "routes/rig.members.tsx",
+    path: (c) => `/rigs/${c.rigId}/members`,
+    params: (c) => ({ rigId: c.rigId }),
+    form: (c) => ({ intent: "role", userId: c.other.memberUserId, role: "owner" }),
+  },
+  {
+    name: "members: remove a member of the other rig only",
+    file: "routes/rig.members.tsx",
+    path: (c) => `/rigs/${c.rigId}/members`,
+    params: (c) => ({ rigId: c.rigId }),
+    form: (c) => ({ intent: "remove", userId: c.other.memberUserId }),
+  },
+  {
+    name: "state write on this rig (no id fields; the other rig must not move)",
+    file: "routes/api.rigs.$rigId.state.ts",
+    path: (c) => `/api/rigs/${c.rigId}/state`,
+    params: (c) => ({ rigId: c.rigId }),
+    json: () => ({ baseVersion: 0, change: { kind: "place", place: { kind: "home" } } }),
+  },
+  {
+    name: "mode edit on this rig (the branch is the URL rig's; the other rig must not move)",
+    file: "routes/api.rigs.$rigId.modes.ts",
+    path: (c) => `/api/rigs/${c.rigId}/modes`,
+    params: (c) => ({ rigId: c.rigId }),
+    json: () => ({ op: "hours", modeId: "nope", expectedRevision: 1, loads: [{ loadId: "fridge", hoursPerDay: 1 }] }),
+  },
+];

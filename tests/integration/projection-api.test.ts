@@ -4,14 +4,14 @@ import { action, loader } from "~/routes/api.v1.projection";
 import { loader as schemaLoader } from "~/routes/api.v1.schema";
 
 const fixture = readFileSync(new URL("../fixtures/projection-request.json", import.meta.url), "utf8");
-const args = (request: Request) => ({ request, params: {}, context: {} }) as Parameters<typeof action>[0];
+/** The socket address each request came from, as scripts/serve.mjs hands it in the context. */
+const peer = new WeakMap<Request, string>();
+const args = (request: Request) => ({ request, params: {}, context: { clientAddress: peer.get(request) } }) as unknown as Parameters<typeof action>[0];
 
 function post(body: string, headers: Record<string, string> = { "content-type": "application/json" }, ip: string = crypto.randomUUID()) {
-  return new Request("http://127.0.0.1/api/v1/projection", {
-    method: "POST",
-    headers: { "x-forwarded-for": ip, ...headers },
-    body,
-  });
+  const request = new Request("http://127.0.0.1/api/v1/projection", { method: "POST", headers, body });
+  peer.set(request, ip);
+  return request;
 }
 
 describe("POST /api/v1/projection", () => {
@@ -68,6 +68,18 @@ describe("POST /api/v1/projection", () => {
     for (let i = 0; i < 121; i++) last = await action(args(post("{}", undefined, ip)));
     expect(last?.status).toBe(429);
     expect(Number(last?.headers.get("retry-after"))).toBeGreaterThan(0);
+  });
+
+  test("a new X-Forwarded-For or X-Real-IP on every request does not dodge the limit (finding 5)", async () => {
+    const ip = `192.0.2.${Math.floor(Math.random() * 250)}`;
+    let last: Response | undefined;
+    for (let i = 0; i < 121; i++) {
+      last = await action(args(post("{}", { "content-type": "application/json", "x-forwarded-for": `10.0.${i}.1`, "x-real-ip": `10.1.${i}.1` }, ip)));
+    }
+    expect(last?.status).toBe(429);
+    expect(Number(last?.headers.get("retry-after"))).toBeGreaterThan(0);
+    // Another client (another socket address) is not locked out by that one.
+    expect((await action(args(post("{}", undefined, `192.0.2.${(Math.floor(Math.random() * 250) + 1) % 250}x`)))).status).toBe(400);
   });
 });
 

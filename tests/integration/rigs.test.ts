@@ -31,12 +31,12 @@ describe("Rig model revisions in PostgreSQL", () => {
     const owner = await newUser();
     const { rig, branch } = await createRig(db, { name: "Revision van", ownerId: owner.id, document: juniperModel });
     const renamed = { ...juniperModel, name: "Juniper II" };
-    const saved = await saveRevision(db, { branchId: branch.id, expectedRevision: 1, document: renamed, authorId: owner.id });
+    const saved = await saveRevision(db, { rigId: branch.rigId, branchId: branch.id, expectedRevision: 1, document: renamed, authorId: owner.id });
     expect(saved.revision).toBe(2);
 
     const stale = { ...juniperModel, name: "Lost edit" };
     await expect(
-      saveRevision(db, { branchId: branch.id, expectedRevision: 1, document: stale, authorId: owner.id }),
+      saveRevision(db, { rigId: branch.rigId, branchId: branch.id, expectedRevision: 1, document: stale, authorId: owner.id }),
     ).rejects.toBeInstanceOf(StaleRevisionError);
 
     const asBuilt = await getAsBuilt(db, rig.id);
@@ -51,7 +51,7 @@ describe("Rig model revisions in PostgreSQL", () => {
     const { branch } = await createRig(db, { name: "Race van", ownerId: owner.id, document: juniperModel });
     const results = await Promise.allSettled(
       [1, 2, 3].map((n) =>
-        saveRevision(db, { branchId: branch.id, expectedRevision: 1, document: { ...juniperModel, name: `Edit ${n}` }, authorId: owner.id }),
+        saveRevision(db, { rigId: branch.rigId, branchId: branch.id, expectedRevision: 1, document: { ...juniperModel, name: `Edit ${n}` }, authorId: owner.id }),
       ),
     );
     expect(results.filter((r) => r.status === "fulfilled")).toHaveLength(1);
@@ -63,7 +63,7 @@ describe("Rig model revisions in PostgreSQL", () => {
     const { rig } = await createRig(db, { name: "Draft van", ownerId: owner.id, document: juniperModel });
     const draft = await createDraft(db, { rigId: rig.id, name: "More solar", authorId: owner.id });
     expect(draft.kind).toBe("draft");
-    await saveRevision(db, { branchId: draft.id, expectedRevision: 1, document: { ...juniperModel, name: "Draft" }, authorId: owner.id });
+    await saveRevision(db, { rigId: rig.id, branchId: draft.id, expectedRevision: 1, document: { ...juniperModel, name: "Draft" }, authorId: owner.id });
     const asBuilt = await getAsBuilt(db, rig.id);
     expect((asBuilt?.document as { name: string }).name).toBe(juniperModel.name);
   });

@@ -32,9 +32,15 @@ async function askForCode(email: string, ip = address(), redirectTo = "/rigs") {
   const result = await callRoute(signInRoute.action, {
     path: "/sign-in",
     form: { intent: "send", email, redirectTo },
-    headers: { "x-forwarded-for": ip },
+    context: { clientAddress: ip },
   });
-  return { result, cookie: cookieFrom(result, "_totp") };
+  return { result, cookie: codeCookies(result) };
+}
+
+/** The browser's cookies after asking for a code: the strategy's and the issued code's id. */
+function codeCookies(result: CallResult): string | null {
+  const pair = [cookieFrom(result, "_totp"), cookieFrom(result, "tilldawn_sign_in")].filter(Boolean);
+  return pair.length ? pair.join("; ") : null;
 }
 
 function codeIn(mail: Mail | undefined): string {

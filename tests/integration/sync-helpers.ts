@@ -2,7 +2,7 @@
 import { users, rigMembers } from "~/db/schema";
 import type { Db } from "~/db/db.server";
 import { createRig } from "~/repos/rigs.server";
-import type { Change } from "~/offline/protocol";
+import type { Change } from "~/schemas/sync";
 import { juniperModel } from "../fixtures/juniper";
 
 export async function juniperCrew(db: Db) {

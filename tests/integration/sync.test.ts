@@ -5,7 +5,7 @@ import { modelBranches, readings, syncChanges } from "~/db/schema";
 import { applySync } from "~/repos/sync.server";
 import { getRigState } from "~/repos/rig-state.server";
 import { getAsBuilt, saveRevision } from "~/repos/rigs.server";
-import { MAX_PULL } from "~/offline/protocol";
+import { MAX_PULL } from "~/schemas/sync";
 import { addChange, change, juniperCrew, juniperReading } from "./sync-helpers";
 import { juniperModel } from "../fixtures/juniper";
 
@@ -194,7 +194,7 @@ describe("POST /api/sync's repository against PostgreSQL", () => {
     expect(crew.results[0]).toMatchObject({ status: "refused", reason: "owners_only" });
 
     // Meanwhile the as-built moved to revision 2 (from another device).
-    await saveRevision(db, { branchId: branch.id, expectedRevision: 1, document: { ...juniperModel, name: "Juniper (roof fan)" }, authorId: ada.id });
+    await saveRevision(db, { rigId: branch.rigId, branchId: branch.id, expectedRevision: 1, document: { ...juniperModel, name: "Juniper (roof fan)" }, authorId: ada.id });
     const owner = await applySync(db, { userId: ada.id, role: "owner" }, {
       rigId: rig.id,
       cursor: null,

@@ -6,7 +6,7 @@
  * and its time, so importing the same file twice never doubles a reading, on the phone or on
  * the server.
  */
-import { newReadingSchema, type NewReading, type ReadingValueKey } from "~/offline/protocol";
+import { newReadingSchema, READING_VALUE_KEYS, type NewReading, type ReadingValueKey } from "~/schemas/readings";
 
 export type Field = "takenAt" | ReadingValueKey | "note";
 export const FIELDS: Array<{ field: Field; label: string }> = [
@@ -188,7 +188,7 @@ export async function convertRows(rigId: string, rows: string[][], mapping: Mapp
     }
     const values: Partial<Record<ReadingValueKey, number | null>> = {};
     let bad = "";
-    for (const field of ["bankVoltageV", "currentA", "socPct", "temperatureC", "solarWhToday"] as const) {
+    for (const field of READING_VALUE_KEYS) {
       const idx = mapping[field];
       if (idx === undefined) continue;
       const raw = cells[idx] ?? "";

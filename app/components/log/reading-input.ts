@@ -3,7 +3,7 @@
  * decimal comma ("13,2") and a current given as a size plus a direction (charging or
  * discharging), so nobody has to type a minus sign on a phone keypad.
  */
-import { newReadingSchema, READING_LIMITS, type NewReading, type ReadingValueKey } from "~/offline/protocol";
+import { newReadingSchema, READING_LIMITS, type NewReading, type ReadingValueKey } from "~/schemas/readings";
 
 export type ReadingForm = Partial<Record<ReadingValueKey | "takenAt" | "note" | "direction", string>>;
 export type ParsedReading = { ok: true; reading: Omit<NewReading, "id"> } | { ok: false; errors: Partial<Record<keyof ReadingForm | "form", string>> };

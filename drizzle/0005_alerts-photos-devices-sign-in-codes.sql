@@ -62,6 +62,16 @@ CREATE TABLE "device_tokens" (
 	"revoked_at" timestamp with time zone
 );
 --> statement-breakpoint
+CREATE TABLE "issued_sign_in_codes" (
+	"id" uuid PRIMARY KEY DEFAULT gen_random_uuid() NOT NULL,
+	"email" text NOT NULL,
+	"code_hash" text NOT NULL,
+	"expires_at" timestamp with time zone NOT NULL,
+	"tries" integer DEFAULT 0 NOT NULL,
+	"used_at" timestamp with time zone,
+	"created_at" timestamp with time zone DEFAULT now() NOT NULL
+);
+--> statement-breakpoint
 CREATE TABLE "photos" (
 	"id" uuid PRIMARY KEY NOT NULL,
 	"rig_id" uuid NOT NULL,
@@ -119,6 +129,7 @@ CREATE UNIQUE INDEX "alert_preferences_unsubscribe_key" ON "alert_preferences" U
 CREATE INDEX "device_readings_device_idx" ON "device_readings" USING btree ("device_id");--> statement-breakpoint
 CREATE UNIQUE INDEX "device_tokens_hash_key" ON "device_tokens" USING btree ("token_hash");--> statement-breakpoint
 CREATE INDEX "device_tokens_rig_idx" ON "device_tokens" USING btree ("rig_id");--> statement-breakpoint
+CREATE INDEX "issued_sign_in_codes_created_idx" ON "issued_sign_in_codes" USING btree ("created_at");--> statement-breakpoint
 CREATE INDEX "photos_rig_created_idx" ON "photos" USING btree ("rig_id","created_at");--> statement-breakpoint
 CREATE INDEX "photos_reading_idx" ON "photos" USING btree ("reading_id");--> statement-breakpoint
 CREATE UNIQUE INDEX "push_subscriptions_endpoint_key" ON "push_subscriptions" USING btree ("endpoint");--> statement-breakpoint
