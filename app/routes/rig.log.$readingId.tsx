@@ -1,7 +1,7 @@
 import { data, Form, Link, redirect, useActionData, useNavigation } from "react-router";
 import type { Route } from "./+types/rig.log.$readingId";
-import { isoToLocalInput, parseReadingForm, type ReadingForm } from "~/components/log/reading-input";
-import { fmtTime } from "~/components/log/format";
+import { isoToLocalInput, parseReadingForm, type ReadingForm } from "~/logbook/reading-input";
+import { fmtTime } from "~/logbook/format";
 import { getMeta, localDb } from "~/offline/db.client";
 import { deleteReading, editReading } from "~/offline/outbox.client";
 import { READING_VALUE_KEYS, type ReadingEdit } from "~/offline/protocol";

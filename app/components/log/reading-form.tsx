@@ -1,7 +1,7 @@
 import { useEffect, useRef, useState } from "react";
 import { Form, useActionData, useNavigation } from "react-router";
 import { cn } from "~/lib/cn";
-import { isoToLocalInput } from "./reading-input";
+import { isoToLocalInput } from "~/logbook/reading-input";
 
 type Errors = Partial<Record<string, string>>;
 

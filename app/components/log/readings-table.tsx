@@ -1,7 +1,7 @@
 import { Link } from "react-router";
 import { cn } from "~/lib/cn";
 import type { LocalReading } from "~/offline/db.client";
-import { fmt, fmtCurrent, fmtTime, sourceLabel } from "./format";
+import { fmt, fmtCurrent, fmtTime, sourceLabel } from "~/logbook/format";
 
 export type TableFilter = { from: string; to: string; source: "" | LocalReading["source"]; only: "" | "waiting" | "refused" };
 

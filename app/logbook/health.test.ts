@@ -1,6 +1,6 @@
 import { describe, expect, test } from "vitest";
 import { healthTrend, toLogReadings } from "./health";
-import { juniperModel } from "../../../tests/fixtures/juniper";
+import { juniperModel } from "../../tests/fixtures/juniper";
 
 const H = 3600_000;
 const start = Date.UTC(2025, 9, 10, 0);
