@@ -41,11 +41,15 @@ export async function loader({ request, params }: Route.LoaderArgs) {
     {
       night: chosen ?? user?.preferences.nightDefault ?? false,
       user: user ? { name: user.name, email: user.email } : null,
+      // Units and clock for every page (kept in the page's data, so they hold offline too).
+      display: user ? { ...pick(user.preferences) } : null,
       currentRig,
     },
     { headers },
   );
 }
+
+const pick = ({ lengthUnit, cableUnit, temperatureUnit, clock }: { lengthUnit: "metric" | "imperial"; cableUnit: "awg" | "mm2"; temperatureUnit: "c" | "f"; clock: "24h" | "12h" }) => ({ lengthUnit, cableUnit, temperatureUnit, clock });
 
 /**
  * Offline, the root's server data (who is signed in, night mode) is kept as it was: asking

@@ -44,6 +44,7 @@ export type SessionUser = {
     cableUnit: "awg" | "mm2";
     temperatureUnit: "c" | "f";
     nightDefault: boolean;
+    clock: "24h" | "12h";
   };
 };
 
@@ -52,6 +53,7 @@ const defaultPreferences: SessionUser["preferences"] = {
   cableUnit: "mm2",
   temperatureUnit: "c",
   nightDefault: false,
+  clock: "24h",
 };
 
 /** Creates a session row for a user and answers the Set-Cookie value that carries it. */
@@ -82,6 +84,7 @@ async function loadSession(db: Db, sessionId: string) {
       cableUnit: userPreferences.cableUnit,
       temperatureUnit: userPreferences.temperatureUnit,
       nightDefault: userPreferences.nightDefault,
+      clock: userPreferences.clock,
     })
     .from(sessions)
     .innerJoin(users, eq(users.id, sessions.userId))
@@ -98,6 +101,7 @@ async function loadSession(db: Db, sessionId: string) {
       cableUnit: row.cableUnit ?? defaultPreferences.cableUnit,
       temperatureUnit: row.temperatureUnit ?? defaultPreferences.temperatureUnit,
       nightDefault: row.nightDefault ?? defaultPreferences.nightDefault,
+      clock: row.clock ?? defaultPreferences.clock,
     },
   };
   return { user, lastSeenAt: row.lastSeenAt };

@@ -112,6 +112,7 @@ export const modelRevisions = pgTable(
 export const lengthUnit = pgEnum("length_unit", ["metric", "imperial"]);
 export const cableUnit = pgEnum("cable_unit", ["awg", "mm2"]);
 export const temperatureUnit = pgEnum("temperature_unit", ["c", "f"]);
+export const clockFormat = pgEnum("clock_format", ["24h", "12h"]);
 
 /** One person's display preferences (a row per user, created on first save). */
 export const userPreferences = pgTable("user_preferences", {
@@ -122,6 +123,8 @@ export const userPreferences = pgTable("user_preferences", {
   cableUnit: cableUnit("cable_unit").notNull().default("mm2"),
   temperatureUnit: temperatureUnit("temperature_unit").notNull().default("c"),
   nightDefault: boolean("night_default").notNull().default(false),
+  /** Times on a 24-hour or a 12-hour clock. */
+  clock: clockFormat("clock").notNull().default("24h"),
   updatedAt: timestamp("updated_at", { withTimezone: true }).notNull().defaultNow(),
 });
 

@@ -1,6 +1,7 @@
 import { eq } from "drizzle-orm";
 import { z } from "zod";
 import type { Db } from "~/db/db.server";
+import { CLOCKS } from "~/lib/datetime";
 import { userPreferences, users } from "~/db/schema";
 
 export const nameSchema = z
@@ -14,6 +15,7 @@ export const preferencesSchema = z.object({
   cableUnit: z.enum(["awg", "mm2"], { error: "Choose AWG or mm²." }),
   temperatureUnit: z.enum(["c", "f"], { error: "Choose °C or °F." }),
   nightDefault: z.boolean(),
+  clock: z.enum(CLOCKS, { error: "Choose a 24-hour or a 12-hour clock." }),
 });
 export type Preferences = z.infer<typeof preferencesSchema>;
 

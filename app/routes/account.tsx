@@ -49,6 +49,7 @@ export const action = protectedAction(async ({ request }: Route.ActionArgs) => {
         cableUnit: form.get("cableUnit"),
         temperatureUnit: form.get("temperatureUnit"),
         nightDefault: form.get("nightDefault") === "on",
+        clock: form.get("clock"),
       });
       if (!parsed.success) {
         const fieldErrors = Object.fromEntries(parsed.error.issues.map((i) => [String(i.path[0]), i.message]));
@@ -160,6 +161,7 @@ export default function Account({ loaderData }: Route.ComponentProps) {
           <Choice legend="Lengths" name="lengthUnit" value={preferences.lengthUnit} options={[["metric", "Metres"], ["imperial", "Feet"]]} error={answer?.fieldErrors?.lengthUnit} />
           <Choice legend="Cable sizes" name="cableUnit" value={preferences.cableUnit} options={[["mm2", "mm²"], ["awg", "AWG"]]} error={answer?.fieldErrors?.cableUnit} />
           <Choice legend="Temperatures" name="temperatureUnit" value={preferences.temperatureUnit} options={[["c", "°C"], ["f", "°F"]]} error={answer?.fieldErrors?.temperatureUnit} />
+          <Choice legend="Clock" name="clock" value={preferences.clock} options={[["24h", "24-hour (20:30)"], ["12h", "12-hour (8:30 PM)"]]} error={answer?.fieldErrors?.clock} />
           <label className="flex min-h-12 items-center gap-3">
             <input type="checkbox" name="nightDefault" defaultChecked={preferences.nightDefault} className="size-5" />
             <span>
