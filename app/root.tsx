@@ -112,6 +112,7 @@ export function ErrorBoundary({ error }: Route.ErrorBoundaryProps) {
   }
   return (
     <main id="main" className="mx-auto flex min-h-dvh max-w-xl flex-col justify-center gap-4 p-6">
+      <title>{`${title} · Tilldawn`}</title>
       <p className="text-sm font-bold uppercase tracking-widest text-dawn-400">Tilldawn</p>
       <h1 className="text-3xl font-bold">{title}</h1>
       <p className="text-lg text-night-200">{detail}</p>

@@ -46,3 +46,8 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   });
   return Response.json({ readings: rows.map(toWire) }, { headers });
 }
+
+/** Readings are written through /api/sync; every other method here is refused as JSON. */
+export function action() {
+  return apiError(405, "method_not_allowed", "Read the logbook with GET; readings are added through POST /api/sync.", undefined, { allow: "GET" });
+}

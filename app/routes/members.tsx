@@ -91,6 +91,7 @@ export const action = protectedAction(async ({ request, params }: Route.ActionAr
         const userId = String(form.get("userId") ?? "");
         const role = roleSchema.safeParse(form.get("role"));
         if (!isUuid(userId) || !role.success) return fail(400, { error: "Choose a member and a role." });
+        if (userId === user.id) return fail(400, { error: "You cannot change your own role: another owner can change it for you." });
         await changeRole(db, rig.id, userId, role.data);
         return data<ActionAnswer>({ intent, ok: `Role changed to ${roleLabel[role.data].toLowerCase()}.` });
       }
@@ -160,7 +161,10 @@ export default function Members({ loaderData }: Route.ComponentProps) {
                 {roleLabel[m.role]}
               </span>
             </div>
-            {isOwner ? (
+            {isOwner && m.userId === me ? (
+              <p className="text-sm text-night-300">Your own role can be changed by another owner of the rig.</p>
+            ) : null}
+            {isOwner && m.userId !== me ? (
               <div className="flex flex-wrap items-end gap-2">
                 <Form method="post" className="flex items-end gap-2">
                   <input type="hidden" name="intent" value="role" />
@@ -183,15 +187,13 @@ export default function Members({ loaderData }: Route.ComponentProps) {
                     Change role
                   </Button>
                 </Form>
-                {m.userId !== me ? (
-                  <Form method="post">
-                    <input type="hidden" name="intent" value="remove" />
-                    <input type="hidden" name="userId" value={m.userId} />
-                    <Button type="submit" variant="danger" aria-label={`Remove ${m.name || m.email} from the rig`}>
-                      Remove
-                    </Button>
-                  </Form>
-                ) : null}
+                <Form method="post">
+                  <input type="hidden" name="intent" value="remove" />
+                  <input type="hidden" name="userId" value={m.userId} />
+                  <Button type="submit" variant="danger" aria-label={`Remove ${m.name || m.email} from the rig`}>
+                    Remove
+                  </Button>
+                </Form>
               </div>
             ) : null}
           </li>
