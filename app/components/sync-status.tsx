@@ -32,6 +32,7 @@ export function SyncStatusBar({ className }: { className?: string }) {
         role="status"
         aria-live="polite"
         data-sync-state={status.state}
+        data-tone={tone}
         data-waiting={status.waiting}
         className={cn(
           "inline-flex min-h-10 items-center gap-2 rounded-full border px-3 text-sm font-bold tabular",
@@ -40,7 +41,7 @@ export function SyncStatusBar({ className }: { className?: string }) {
           tone === "bad" && "border-ember-500 text-ember-300",
         )}
       >
-        <span aria-hidden="true" className={cn("size-2 rounded-full", tone === "ok" ? "bg-leaf-400" : tone === "wait" ? "bg-dawn-400" : "bg-ember-500")} />
+        <span aria-hidden="true">{tone === "ok" ? "✓" : tone === "wait" ? "◷" : "!"}</span>
         {text}
       </p>
       {status.state === "error" && status.error?.code === "auth" ? (
