@@ -103,6 +103,12 @@ export function ErrorBoundary({ error }: Route.ErrorBoundaryProps) {
     if (error.status === 404) {
       title = "Page not found";
       detail = "There is nothing at this address. It may have moved, or the rig may not be shared with you.";
+    } else if (error.status === 403) {
+      title = "Not open to you";
+      detail = typeof error.data === "string" ? error.data : (error.data?.message ?? "Your role on this rig does not include this page.");
+    } else if (error.status === 503) {
+      title = "Needs a connection";
+      detail = typeof error.data === "string" ? error.data : (error.data?.message ?? detail);
     } else {
       title = `${error.status} ${error.statusText || "Error"}`;
       detail = typeof error.data === "string" ? error.data : (error.data?.message ?? detail);

@@ -7,6 +7,7 @@ import { getDb } from "~/db/db.server";
 import { sessions } from "~/db/schema";
 import { deleteAccount, RigSetChangedError, soleOwnedRigs } from "~/repos/members.server";
 import { nameSchema, preferencesSchema, savePreferences, setName } from "~/repos/users.server";
+import { OfflineCopy } from "~/components/offline-copy";
 import { Button, Card, Field, Notice } from "~/components/ui/form";
 
 /** GET /account — name, e-mail, units, night mode, signing out, deleting the account. */
@@ -18,6 +19,12 @@ export async function loader({ request }: Route.LoaderArgs) {
     db.select({ n: count() }).from(sessions).where(eq(sessions.userId, user.id)),
   ]);
   return { name: user.name, email: user.email, preferences: user.preferences, soleRigs, sessions: sessionCount?.n ?? 1 };
+}
+
+/** Offline: the copy this phone kept the last time the page was shown online. */
+export async function clientLoader({ serverLoader }: Route.ClientLoaderArgs) {
+  const { serverOrPhoneCopy } = await import("~/offline/offline-loader.client");
+  return serverOrPhoneCopy("account", serverLoader);
 }
 
 type AccountAnswer = {
@@ -129,6 +136,7 @@ export default function Account({ loaderData }: Route.ComponentProps) {
   return (
     <div className="space-y-6">
       <h1 className="text-3xl font-bold">Account</h1>
+      <OfflineCopy pageKey={"account"} data={loaderData} copy={"offlineCopy" in loaderData ? loaderData.offlineCopy : null} what="Changes to your account" />
 
       <Card>
         <h2 className="text-xl font-bold">You</h2>

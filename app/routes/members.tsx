@@ -19,6 +19,7 @@ import {
   removeMember,
   revokeInvite,
 } from "~/repos/members.server";
+import { OfflineCopy } from "~/components/offline-copy";
 import { Button, Card, Field, Notice } from "~/components/ui/form";
 
 /** GET /rigs/:rigId/members — everyone on the rig sees who is on it; owners also manage it. */
@@ -30,6 +31,12 @@ export async function loader({ request, params }: Route.LoaderArgs) {
     role === "owner" ? listPendingInvites(db, rig.id) : Promise.resolve([]),
   ]);
   return { rig, role, me: user.id, members, invites };
+}
+
+/** Offline: the copy this phone kept the last time the page was shown online. */
+export async function clientLoader({ serverLoader, params }: Route.ClientLoaderArgs) {
+  const { serverOrPhoneCopy } = await import("~/offline/offline-loader.client");
+  return serverOrPhoneCopy(`members:${params.rigId}`, serverLoader);
 }
 
 type ActionAnswer = {
@@ -139,6 +146,7 @@ export default function Members({ loaderData }: Route.ComponentProps) {
       <header className="space-y-1">
         <p className="text-sm font-bold uppercase tracking-widest text-dawn-400">{rig.name}</p>
         <h1 className="text-3xl font-bold">People on this rig</h1>
+      <OfflineCopy pageKey={`members:${rig.id}`} data={loaderData} copy={"offlineCopy" in loaderData ? loaderData.offlineCopy : null} what="Invitations and role changes" />
       </header>
 
       <div aria-live="polite" className="space-y-2">
