@@ -20,8 +20,14 @@ import { currentRigOf } from "~/auth/guards.server";
 import { navFor } from "~/components/app-shell";
 import { lastRigSetCookie } from "~/lib/last-rig";
 import "./app.css";
+// The two weights the first screen uses, preloaded so text does not wait on the CSS to name them
+// (@fontsource's CSS declares font-display: swap, so text shows at once in a fallback face).
+import font400 from "@fontsource/atkinson-hyperlegible/files/atkinson-hyperlegible-latin-400-normal.woff2?url";
+import font700 from "@fontsource/atkinson-hyperlegible/files/atkinson-hyperlegible-latin-700-normal.woff2?url";
 
 export const links: Route.LinksFunction = () => [
+  { rel: "preload", href: font400, as: "font", type: "font/woff2", crossOrigin: "anonymous" },
+  { rel: "preload", href: font700, as: "font", type: "font/woff2", crossOrigin: "anonymous" },
   { rel: "manifest", href: "/manifest.webmanifest" },
   { rel: "icon", href: "/favicon.ico", sizes: "32x32" },
   { rel: "icon", href: "/icons/icon.svg", type: "image/svg+xml" },
