@@ -1,5 +1,5 @@
 import { describe, expect, test } from "vitest";
-import { dayKey, formatDate, formatDateTime, formatTime, fromLocal, fromLocalInput, toLocalInput } from "./datetime";
+import { dayKey, formatDate, formatDayMonth, formatDateTime, formatTime, fromLocal, fromLocalInput, toLocalInput } from "./datetime";
 
 // Offsets from the IANA time zone database (tzdb 2025): Europe/Berlin is UTC+2 in summer time
 // until 26 Oct 2025 01:00 UTC, then UTC+1; America/Denver is UTC−6 in summer time, UTC−7 after
@@ -17,6 +17,7 @@ describe("Dates and times in the rig's time zone", () => {
     expect(formatTime(at, { timeZone: "Europe/Berlin", clock: "12h" })).toBe("8:22\u202fPM");
     expect(formatDate(at, { timeZone: "Pacific/Auckland", clock: "24h" })).toBe("Wed, 15 Oct 2025");
     expect(formatDateTime(at, { timeZone: "Europe/Berlin", clock: "24h" })).toBe("Tue, 14 Oct 2025, 20:22");
+    expect(formatDayMonth(at, { timeZone: "Pacific/Auckland", clock: "24h" })).toBe("15 Oct");
   });
 
   test("a typed local time is read in the rig's zone on both sides of a summer-time change", () => {

@@ -24,7 +24,7 @@ export function phoneTimeZone(): string {
 // One locale for the date style, so "14 Oct 2025" reads the same on every phone.
 const LOCALE = "en-GB";
 const cache = new Map<string, Intl.DateTimeFormat>();
-function formatter(kind: "date" | "time" | "dateTime" | "dayTime" | "short", s: TimeSettings): Intl.DateTimeFormat {
+function formatter(kind: "date" | "time" | "dateTime" | "dayTime" | "short" | "dayMonth", s: TimeSettings): Intl.DateTimeFormat {
   const key = `${kind}|${s.timeZone}|${s.clock}`;
   let f = cache.get(key);
   if (f) return f;
@@ -35,6 +35,7 @@ function formatter(kind: "date" | "time" | "dateTime" | "dayTime" | "short", s: 
     : kind === "time" ? clock
     : kind === "dayTime" ? { weekday: "short", ...clock }
     : kind === "short" ? { day: "numeric", month: "short", ...clock }
+    : kind === "dayMonth" ? { day: "numeric", month: "short" }
     : { ...date, ...clock };
   f = new Intl.DateTimeFormat(LOCALE, { timeZone: s.timeZone, ...options });
   cache.set(key, f);
@@ -54,6 +55,9 @@ export const formatDateTime = (ms: number, s: TimeSettings) => tidy(formatter("d
 export const formatDayTime = (ms: number, s: TimeSettings) => tidy(formatter("dayTime", s).format(new Date(ms)));
 /** "14 Oct, 20:22": chart legends and tight cells. */
 export const formatShortDateTime = (ms: number, s: TimeSettings) => tidy(formatter("short", s).format(new Date(ms)));
+
+/** "14 Oct": chart ticks a day or more apart. */
+export const formatDayMonth = (ms: number, s: TimeSettings) => formatter("dayMonth", s).format(new Date(ms));
 
 /** "2025-10-14" of the instant in the zone (a calendar day there). */
 export function dayKey(ms: number, timeZone: string): string {

@@ -90,6 +90,10 @@ describe("The logbook on a phone", () => {
     const ticks = (await figure.getAttribute("data-v-ticks"))!.split(" ");
     expect(ticks.length).toBeGreaterThan(1);
     expect(new Set(ticks).size).toBe(ticks.length);
+    // Time ticks in the app's clock (24-hour by default), not the browser's "11/29" style.
+    const xTicks = (await figure.getAttribute("data-x-ticks"))!.split(" | ");
+    expect(xTicks.length).toBeGreaterThan(1);
+    for (const t of xTicks) expect(t).toMatch(/^\d{2}:\d{2}$/);
     const legend = flat(await page.locator("[data-chart-legend]").innerText());
     expect(legend).toContain("13.21 V");
     expect(legend).toContain("80 %");

@@ -1,7 +1,7 @@
 import { useEffect, useRef, useState } from "react";
 import type uPlot from "uplot";
 import "uplot/dist/uPlot.min.css";
-import { formatShortDateTime, type TimeSettings } from "~/lib/datetime";
+import { formatDayMonth, formatShortDateTime, formatTime, type TimeSettings } from "~/lib/datetime";
 import { tickLabels, timeRange, voltageRange } from "~/logbook/chart-axes";
 
 export type ChartSeries = { t: number[]; v: (number | null)[]; soc: (number | null)[] };
@@ -23,7 +23,7 @@ export function ReadingChart({ data, label, time }: { data: ChartSeries; label: 
   const plot = useRef<uPlot | null>(null);
   const [width, setWidth] = useState(0);
   const [idx, setIdx] = useState<number | null>(null);
-  const [axes, setAxes] = useState<{ x: string; v: string; vTicks: string }>({ x: "", v: "", vTicks: "" });
+  const [axes, setAxes] = useState<{ x: string; v: string; vTicks: string; xTicks: string }>({ x: "", v: "", vTicks: "", xTicks: "" });
 
   useEffect(() => {
     const el = box.current;
@@ -51,6 +51,7 @@ export function ReadingChart({ data, label, time }: { data: ChartSeries; label: 
       const ts = data.t.map((t) => t / 1000);
       const xRange = timeRange(ts.length ? ts[0]! : null, ts.length ? ts[ts.length - 1]! : null);
       let vTicks: string[] = [];
+      let xTicks: string[] = [];
       const opts: uPlot.Options = {
         width,
         height: 240,
@@ -58,7 +59,11 @@ export function ReadingChart({ data, label, time }: { data: ChartSeries; label: 
         tzDate: (s) => UPlot.tzDate(new Date(s * 1000), time.timeZone),
         scales: { x: { time: true, range: () => xRange }, v: { range: () => vRange }, soc: { range: [0, 100] } },
         axes: [
-          { ...axis },
+          {
+            ...axis,
+            // The app's own date style and the person's clock, in the rig's zone.
+            values: (_u, splits, _i, _space, incr) => (xTicks = splits.map((s) => (incr < 86_400 ? formatTime(s * 1000, time) : formatDayMonth(s * 1000, time)))),
+          },
           {
             ...axis,
             scale: "v",
@@ -80,6 +85,7 @@ export function ReadingChart({ data, label, time }: { data: ChartSeries; label: 
                 x: `${u.scales.x!.min}..${u.scales.x!.max}`,
                 v: `${u.scales.v!.min}..${u.scales.v!.max}`,
                 vTicks: vTicks.join(" "),
+                xTicks: xTicks.join(" | "),
               }),
           ],
         },
@@ -90,7 +96,7 @@ export function ReadingChart({ data, label, time }: { data: ChartSeries; label: 
     return () => {
       cancelled = true;
     };
-  }, [data, width, time.timeZone]);
+  }, [data, width, time]);
 
   useEffect(() => () => plot.current?.destroy(), []);
 
@@ -98,7 +104,7 @@ export function ReadingChart({ data, label, time }: { data: ChartSeries; label: 
   const v = data.v[at];
   const soc = data.soc[at];
   return (
-    <figure className="space-y-2" data-x-range={axes.x} data-v-range={axes.v} data-v-ticks={axes.vTicks}>
+    <figure className="space-y-2" data-x-range={axes.x} data-v-range={axes.v} data-v-ticks={axes.vTicks} data-x-ticks={axes.xTicks}>
       <div ref={box} className="w-full overflow-hidden text-night-200" role="img" aria-label={label} />
       <figcaption className="sr-only">{label}</figcaption>
       {at >= 0 && data.t[at] !== undefined ? (
