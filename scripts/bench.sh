@@ -41,7 +41,8 @@ node scripts/wait-ready.mjs "http://127.0.0.1:$PORT/api/health" 30000 || die "Th
 # The anchor: a bare React Router app with the same home loader, built here in this run.
 log "Building the bare anchor app (scripts/bench-bare)"
 (cd scripts/bench-bare && npx react-router build >"$ROOT/.data/bench/bare-build.log" 2>&1) || die "Bare app build failed (.data/bench/bare-build.log)"
-NODE_ENV=production PORT="$BARE_PORT" ./node_modules/.bin/react-router-serve ./.data/bench/bare-build/server/index.js >/dev/null & BARE=$!
+# react-router-serve finds the static assets relative to its working folder: start it from there.
+(cd scripts/bench-bare && NODE_ENV=production PORT="$BARE_PORT" exec ../../node_modules/.bin/react-router-serve ../../.data/bench/bare-build/server/index.js >/dev/null) & BARE=$!
 node scripts/wait-ready.mjs "http://127.0.0.1:$BARE_PORT/" 30000 || die "The bare app did not start"
 export BENCH_BARE_URL="http://127.0.0.1:$BARE_PORT/" BENCH_BARE_CLIENT="$ROOT/.data/bench/bare-build/client"
 echo
