@@ -22,8 +22,14 @@ import { lastRigSetCookie } from "~/lib/last-rig";
 import { thrownMessage } from "~/lib/http";
 import "./app.css";
 import { useNonce } from "~/lib/nonce";
+// The two weights the first screen uses, preloaded so text does not wait on the CSS to name them
+// (@fontsource's CSS declares font-display: swap, so text shows at once in a fallback face).
+import font400 from "@fontsource/atkinson-hyperlegible/files/atkinson-hyperlegible-latin-400-normal.woff2?url";
+import font700 from "@fontsource/atkinson-hyperlegible/files/atkinson-hyperlegible-latin-700-normal.woff2?url";
 
 export const links: Route.LinksFunction = () => [
+  { rel: "preload", href: font400, as: "font", type: "font/woff2", crossOrigin: "anonymous" },
+  { rel: "preload", href: font700, as: "font", type: "font/woff2", crossOrigin: "anonymous" },
   { rel: "manifest", href: "/manifest.webmanifest" },
   { rel: "icon", href: "/favicon.ico", sizes: "32x32" },
   { rel: "icon", href: "/icons/icon.svg", type: "image/svg+xml" },
@@ -43,11 +49,15 @@ export async function loader({ request, params }: Route.LoaderArgs) {
     {
       night: chosen ?? user?.preferences.nightDefault ?? false,
       user: user ? { name: user.name, email: user.email } : null,
+      // Units and clock for every page (kept in the page's data, so they hold offline too).
+      display: user ? { ...pick(user.preferences) } : null,
       currentRig,
     },
     { headers },
   );
 }
+
+const pick = ({ lengthUnit, cableUnit, temperatureUnit, clock }: { lengthUnit: "metric" | "imperial"; cableUnit: "awg" | "mm2"; temperatureUnit: "c" | "f"; clock: "24h" | "12h" }) => ({ lengthUnit, cableUnit, temperatureUnit, clock });
 
 /**
  * Offline, the root's server data (who is signed in, night mode) is kept as it was: asking
@@ -102,6 +112,12 @@ export function ErrorBoundary({ error }: Route.ErrorBoundaryProps) {
     if (error.status === 404) {
       title = "Page not found";
       detail = "There is nothing at this address. It may have moved, or the rig may not be shared with you.";
+    } else if (error.status === 403) {
+      title = "Not open to you";
+      detail = typeof error.data === "string" ? error.data : (error.data?.message ?? "Your role on this rig does not include this page.");
+    } else if (error.status === 503) {
+      title = "Needs a connection";
+      detail = typeof error.data === "string" ? error.data : (error.data?.message ?? detail);
     } else {
       title = `${error.status} ${error.statusText || "Error"}`;
       detail = thrownMessage(error.data) ?? detail;
@@ -111,6 +127,7 @@ export function ErrorBoundary({ error }: Route.ErrorBoundaryProps) {
   }
   return (
     <main id="main" className="mx-auto flex min-h-dvh max-w-xl flex-col justify-center gap-4 p-6">
+      <title>{`${title} · Tilldawn`}</title>
       <p className="text-sm font-bold uppercase tracking-widest text-dawn-400">Tilldawn</p>
       <h1 className="text-3xl font-bold">{title}</h1>
       <p className="text-lg text-night-200">{detail}</p>

@@ -65,6 +65,10 @@ try {
   const worst = Math.max(...chart, ...runway);
   const weight = await pageWeight(`${base}/rigs/${rig.id}`, { cookie: setCookie.split(";")[0]! });
   console.log(`Now route JavaScript at first load: ${weight.gzipKB} KB gzip in ${weight.files.length} files (target < 200 KB; the chart module loads after).`);
+  if (process.env.BENCH_BARE_URL && process.env.BENCH_BARE_CLIENT) {
+    const bare = await pageWeight(process.env.BENCH_BARE_URL, {}, process.env.BENCH_BARE_CLIENT);
+    console.log(`  bare React Router app, same run: ${bare.gzipKB} KB gzip; ratio ${(weight.gzipKB / bare.gzipKB).toFixed(2)}x (goal <= 1.50x)`);
+  }
   console.log(worst < 50 ? "Under the 50 ms target." : `Over the 50 ms target (worst ${worst.toFixed(1)} ms).`);
 } finally {
   await browser.close();

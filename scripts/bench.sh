@@ -21,7 +21,9 @@ ensure_node_modules
 ensure_postgres
 ensure_chromium
 SERVER=""
-cleanup() { local code=$?; [ -n "$SERVER" ] && kill "$SERVER" 2>/dev/null; pg_down "$DATA_DIR/pg"; exit $code; }
+BARE=""
+BARE_PORT="${BENCH_BARE_PORT:-3297}"
+cleanup() { local code=$?; [ -n "$SERVER" ] && kill "$SERVER" 2>/dev/null; [ -n "$BARE" ] && kill "$BARE" 2>/dev/null; pg_down "$DATA_DIR/pg"; exit $code; }
 trap cleanup EXIT
 trap 'exit 130' INT TERM
 pg_down "$DATA_DIR/pg"
@@ -36,9 +38,17 @@ log "Building the app"
 npx react-router build >"$ROOT/.data/bench/build.log" 2>&1 || die "Build failed (.data/bench/build.log)"
 NODE_ENV=production PORT="$PORT" node scripts/serve.mjs ./build/server/index.js >/dev/null & SERVER=$!
 node scripts/wait-ready.mjs "http://127.0.0.1:$PORT/api/health" 30000 || die "The app did not start"
+# The anchor: a bare React Router app with the same home loader, built here in this run.
+log "Building the bare anchor app (scripts/bench-bare)"
+(cd scripts/bench-bare && npx react-router build >"$ROOT/.data/bench/bare-build.log" 2>&1) || die "Bare app build failed (.data/bench/bare-build.log)"
+# react-router-serve finds the static assets relative to its working folder: start it from there.
+(cd scripts/bench-bare && NODE_ENV=production PORT="$BARE_PORT" exec ../../node_modules/.bin/react-router-serve ../../.data/bench/bare-build/server/index.js >/dev/null) & BARE=$!
+node scripts/wait-ready.mjs "http://127.0.0.1:$BARE_PORT/" 30000 || die "The bare app did not start"
+export BENCH_BARE_URL="http://127.0.0.1:$BARE_PORT/" BENCH_BARE_CLIENT="$ROOT/.data/bench/bare-build/client"
 echo
 echo "## Pages"
-node --import tsx scripts/page-weight.ts "http://127.0.0.1:$PORT/"
+node --import tsx scripts/page-weight.ts "http://127.0.0.1:$PORT/" --against "$BENCH_BARE_URL" "$BENCH_BARE_CLIENT"
+node --import tsx scripts/bench-lcp.ts "http://127.0.0.1:$PORT/" "$BENCH_BARE_URL" 5
 echo "Server resident memory after start: $(( $(awk '/VmRSS/ {print $2}' /proc/$SERVER/status) / 1024 )) MB"
 echo
 echo "## Now screen"

@@ -89,8 +89,22 @@ function engineSections(): Section[] {
         const short: CurrentState = { ...state, banks: [{ bankId: "house", socPct: 55 }, { bankId: "aux", socPct: 60 }, { bankId: "starter", socPct: 90 }] };
         const dawnProbe = planForDawn(model, graph, short, { marginSocPct: 5 });
         const dawn = timeIt(() => planForDawn(model, graph, short, { marginSocPct: 5 }), { warmup: 10, runs: 60 });
+        // The floor, in the same run: the projection's step × load multiply-adds in a plain loop
+        // (72 h of 5-min steps × every load), the least any projection of this rig can cost.
+        const steps = (72 * 60) / 5;
+        const watts = Float64Array.from(model.loads, (_, i) => 1 + (i % 7));
+        const duty = Float64Array.from(model.loads, (_, i) => (i % 3) / 2);
+        let sink = 0;
+        const floor = timeIt(() => {
+          let wh = 0;
+          for (let t = 0; t < steps; t++) for (let i = 0; i < watts.length; i++) wh += watts[i]! * duty[i]! * (5 / 60);
+          sink += wh;
+        });
+        if (sink === -1) console.log(sink); // keeps the loop from being optimised away
         return [
           { name: "72-h projection, 5-min steps", ...proj, unit: "ms", target: 2 },
+          { name: `floor: ${steps} steps × ${watts.length} loads multiply-adds, same run`, ...floor, unit: "ms", target: Number.NaN },
+          { name: "projection ÷ floor (CPU median)", median: proj.cpuMedian / Math.max(floor.cpuMedian, 1e-6), unit: "×", target: Number.NaN },
           { name: "full audit (circuits + findings) + circuit graph", ...audit, unit: "ms", target: 4 },
           { name: "electrical solution after a switch change (graph + solution)", ...solution, unit: "ms", target: 2 },
           { name: `dawn plan, ${dawnProbe.method} search (${dawnProbe.found ? `${dawnProbe.actions.length} actions` : "none found"}, ${dawnProbe.projectionsRun} projections)`, ...dawn, unit: "ms", target: 20 },

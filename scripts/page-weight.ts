@@ -3,8 +3,10 @@
 // (pageWeight also takes request headers, e.g. a session cookie for signed-in pages).
 import { readFileSync } from "node:fs";
 import { gzipSync } from "node:zlib";
+import { fileURLToPath } from "node:url";
 
-export async function pageWeight(url: string, headers: Record<string, string> = {}) {
+/** `clientDir`: the built app's client folder (default build/client; the bare anchor app has its own). */
+export async function pageWeight(url: string, headers: Record<string, string> = {}, clientDir = fileURLToPath(new URL("../build/client", import.meta.url))) {
   const html = await (await fetch(url, { headers })).text();
   const srcs = new Set<string>();
   for (const m of html.matchAll(/<link rel="modulepreload" href="([^"]+)"/g)) srcs.add(m[1]!);
@@ -14,7 +16,7 @@ export async function pageWeight(url: string, headers: Record<string, string> = 
   let gzip = 0;
   const files: Array<{ file: string; gzipKB: number }> = [];
   for (const src of srcs) {
-    const body = readFileSync(new URL(`../build/client${new URL(src, url).pathname}`, import.meta.url));
+    const body = readFileSync(`${clientDir}${new URL(src, url).pathname}`);
     const z = gzipSync(body, { level: 9 }).length;
     raw += body.length;
     gzip += z;
@@ -24,8 +26,16 @@ export async function pageWeight(url: string, headers: Record<string, string> = 
 }
 
 if (import.meta.url === `file://${process.argv[1]}`) {
-  for (const url of process.argv.slice(2)) {
+  const args = process.argv.slice(2);
+  // `--against BARE_URL BARE_CLIENT_DIR`: also print the anchor's weight and the ratio.
+  const at = args.indexOf("--against");
+  const urls = at >= 0 ? args.slice(0, at) : args;
+  for (const url of urls) {
     const w = await pageWeight(url);
     console.log(`${w.url}: ${w.gzipKB} KB gzip (${w.rawKB} KB raw) in ${w.files.length} files`);
+    if (at >= 0) {
+      const b = await pageWeight(args[at + 1]!, {}, args[at + 2]!);
+      console.log(`  bare React Router app, same loader: ${b.gzipKB} KB gzip; ratio ${(w.gzipKB / b.gzipKB).toFixed(2)}x (goal <= 1.15x)`);
+    }
   }
 }

@@ -71,6 +71,7 @@ async function loadSession(db: Db, sessionId: string) {
       cableUnit: userPreferences.cableUnit,
       temperatureUnit: userPreferences.temperatureUnit,
       nightDefault: userPreferences.nightDefault,
+      clock: userPreferences.clock,
     })
     .from(sessions)
     .innerJoin(users, eq(users.id, sessions.userId))
@@ -87,6 +88,7 @@ async function loadSession(db: Db, sessionId: string) {
       cableUnit: row.cableUnit ?? defaultPreferences.cableUnit,
       temperatureUnit: row.temperatureUnit ?? defaultPreferences.temperatureUnit,
       nightDefault: row.nightDefault ?? defaultPreferences.nightDefault,
+      clock: row.clock ?? defaultPreferences.clock,
     },
   };
   return { user, lastSeenAt: row.lastSeenAt };

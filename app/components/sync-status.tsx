@@ -1,4 +1,4 @@
-import { useEffect, useState } from "react";
+import { useEffect, useState, useSyncExternalStore } from "react";
 import { useLocation } from "react-router";
 import { cn } from "~/lib/cn";
 import { useSyncStatus } from "~/offline/live.client";
@@ -17,9 +17,25 @@ export function syncLabel(s: SyncStatus): { text: string; tone: "ok" | "wait" | 
   return { text: s.lastSyncedAt ? "Synced" : "Saved on phone", tone: "ok" };
 }
 
+/** Whether the browser has a network at all (the runner may not have tried yet). */
+function useOnline(): boolean {
+  return useSyncExternalStore(
+    (notify) => {
+      window.addEventListener("online", notify);
+      window.addEventListener("offline", notify);
+      return () => (window.removeEventListener("online", notify), window.removeEventListener("offline", notify));
+    },
+    () => navigator.onLine,
+    () => true,
+  );
+}
+
 /** A visible sync state with the count of waiting changes, a retry, and a sign-in prompt. */
 export function SyncStatusBar({ className }: { className?: string }) {
-  const status = useSyncStatus();
+  const runner = useSyncStatus();
+  const online = useOnline();
+  // With no network the badge says so, whatever the runner last saw.
+  const status: SyncStatus = !online && runner.state !== "offline" ? { ...runner, state: "offline" } : runner;
   const location = useLocation();
   const [hydrated, setHydrated] = useState(false);
   useEffect(() => setHydrated(true), []);
@@ -32,6 +48,7 @@ export function SyncStatusBar({ className }: { className?: string }) {
         role="status"
         aria-live="polite"
         data-sync-state={status.state}
+        data-tone={tone}
         data-waiting={status.waiting}
         className={cn(
           "inline-flex min-h-10 items-center gap-2 rounded-full border px-3 text-sm font-bold tabular",
@@ -40,7 +57,7 @@ export function SyncStatusBar({ className }: { className?: string }) {
           tone === "bad" && "border-ember-500 text-ember-300",
         )}
       >
-        <span aria-hidden="true" className={cn("size-2 rounded-full", tone === "ok" ? "bg-leaf-400" : tone === "wait" ? "bg-dawn-400" : "bg-ember-500")} />
+        <span aria-hidden="true">{tone === "ok" ? "✓" : tone === "wait" ? "◷" : "!"}</span>
         {text}
       </p>
       {status.state === "error" && status.error?.code === "auth" ? (

@@ -23,7 +23,7 @@ import {
 } from "drizzle-orm/pg-core";
 // Relative imports: drizzle-kit reads this file without the app's "~/" alias.
 import { rigRoles } from "../auth/roles";
-import { cableUnits, defaultPreferences, lengthUnits, temperatureUnits } from "../schemas/account";
+import { cableUnits, clocks, defaultPreferences, lengthUnits, temperatureUnits } from "../schemas/account";
 import { socSources } from "../schemas/rig-state";
 import { READING_SOURCES } from "../schemas/readings";
 
@@ -117,6 +117,7 @@ export const modelRevisions = pgTable(
 export const lengthUnit = pgEnum("length_unit", lengthUnits);
 export const cableUnit = pgEnum("cable_unit", cableUnits);
 export const temperatureUnit = pgEnum("temperature_unit", temperatureUnits);
+export const clockFormat = pgEnum("clock_format", clocks);
 
 /** One person's display preferences (a row per user, created on first save). */
 export const userPreferences = pgTable("user_preferences", {
@@ -127,6 +128,8 @@ export const userPreferences = pgTable("user_preferences", {
   cableUnit: cableUnit("cable_unit").notNull().default(defaultPreferences.cableUnit),
   temperatureUnit: temperatureUnit("temperature_unit").notNull().default(defaultPreferences.temperatureUnit),
   nightDefault: boolean("night_default").notNull().default(defaultPreferences.nightDefault),
+  /** Times on a 24-hour or a 12-hour clock. */
+  clock: clockFormat("clock").notNull().default(defaultPreferences.clock),
   updatedAt: timestamp("updated_at", { withTimezone: true }).notNull().defaultNow(),
 });
 

@@ -9,6 +9,7 @@ import { soleOwnedRigs } from "~/repos/members.server";
 import { countSessions } from "~/repos/users.server";
 import { answerFor, fieldProps, formError } from "~/lib/forms";
 import { ACCOUNT_INTENT, deleteAccountFormSchema, preferencesFormSchema, profileFormSchema } from "~/schemas/account";
+import { OfflineCopy } from "~/components/offline-copy";
 import { Button, Card, Field, Notice } from "~/components/ui/form";
 import { accountAction, type AccountAnswer, type AccountIntent } from "./account.server";
 
@@ -18,6 +19,12 @@ export async function loader({ request }: Route.LoaderArgs) {
   const db = getDb();
   const [soleRigs, sessionCount] = await Promise.all([soleOwnedRigs(db, user.id), countSessions(db, user.id)]);
   return { name: user.name, email: user.email, preferences: user.preferences, soleRigs, sessions: sessionCount };
+}
+
+/** Offline: the copy this phone kept the last time the page was shown online. */
+export async function clientLoader({ serverLoader }: Route.ClientLoaderArgs) {
+  const { serverOrPhoneCopy } = await import("~/offline/offline-loader.client");
+  return serverOrPhoneCopy("account", serverLoader);
 }
 
 export const action = protectedAction(accountAction);
@@ -83,6 +90,7 @@ export default function Account({ loaderData }: Route.ComponentProps) {
   return (
     <div className="space-y-6">
       <h1 className="text-3xl font-bold">Account</h1>
+      <OfflineCopy pageKey={"account"} data={loaderData} copy={"offlineCopy" in loaderData ? loaderData.offlineCopy : null} what="Changes to your account" />
 
       <Card>
         <h2 className="text-xl font-bold">You</h2>
@@ -114,6 +122,7 @@ export default function Account({ loaderData }: Route.ComponentProps) {
           <Choice legend="Lengths" name={prefs.lengthUnit.name} value={preferences.lengthUnit} options={[["metric", "Metres"], ["imperial", "Feet"]]} error={prefs.lengthUnit.errors?.[0]} />
           <Choice legend="Cable sizes" name={prefs.cableUnit.name} value={preferences.cableUnit} options={[["mm2", "mm²"], ["awg", "AWG"]]} error={prefs.cableUnit.errors?.[0]} />
           <Choice legend="Temperatures" name={prefs.temperatureUnit.name} value={preferences.temperatureUnit} options={[["c", "°C"], ["f", "°F"]]} error={prefs.temperatureUnit.errors?.[0]} />
+          <Choice legend="Clock" name={prefs.clock.name} value={preferences.clock} options={[["24h", "24-hour (20:30)"], ["12h", "12-hour (8:30 PM)"]]} error={prefs.clock.errors?.[0]} />
           <label className="flex min-h-12 items-center gap-3">
             <input type="checkbox" name={prefs.nightDefault.name} defaultChecked={preferences.nightDefault} className="size-5" />
             <span>

@@ -2,7 +2,7 @@ import type { Route } from "./+types/api.rigs.$rigId.readings";
 import { z } from "zod";
 import { requireRigRole } from "~/auth/guards.server";
 import { getDb } from "~/db/db.server";
-import { badRequest, issuesOf } from "~/lib/http";
+import { apiError, badRequest, issuesOf } from "~/lib/http";
 import { queryTime } from "~/schemas/readings";
 import { listReadings, readingSeries, toWire } from "~/repos/readings.server";
 
@@ -46,4 +46,9 @@ export async function loader({ request, params }: Route.LoaderArgs) {
     before,
   });
   return Response.json({ readings: rows.map(toWire) }, { headers });
+}
+
+/** Readings are written through /api/sync; every other method here is refused as JSON. */
+export function action() {
+  return apiError(405, "method_not_allowed", "Read the logbook with GET; readings are added through POST /api/sync.", undefined, { allow: "GET" });
 }

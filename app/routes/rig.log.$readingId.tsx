@@ -1,7 +1,10 @@
 import { data, Form, Link, redirect, useActionData, useNavigation } from "react-router";
 import type { Route } from "./+types/rig.log.$readingId";
-import { isoToLocalInput, parseReadingForm, type ReadingForm } from "~/components/log/reading-input";
-import { fmtTime } from "~/components/log/format";
+import { isoToLocalInput, parseReadingForm, type ReadingForm } from "~/logbook/reading-input";
+import { formatDateTime, phoneTimeZone } from "~/lib/datetime";
+import { temperatureSymbol, toTemperature } from "~/lib/units";
+import { useDisplay } from "~/hooks/use-display";
+import { readRigLocal } from "~/offline/rig-data.client";
 import { ReadingPhotos } from "~/components/photos/reading-photos";
 import { getMeta, localDb } from "~/offline/db.client";
 import { deleteReading, editReading } from "~/offline/outbox.client";
@@ -15,7 +18,8 @@ export async function clientLoader({ params }: Route.ClientLoaderArgs) {
   if (!reading || reading.rigId !== params.rigId) throw data({ message: "That reading is not in this phone's logbook." }, { status: 404 });
   const userId = rig?.userId ?? (await getMeta<string | null>(db, "userId", null));
   const mayEdit = rig?.role === "owner" || (rig?.role === "crew" && reading.authorId === userId);
-  return { reading, mayEdit, rigName: rig?.name ?? "Rig" };
+  const timeZone = (await readRigLocal(params.rigId))?.model?.model.timeZone ?? phoneTimeZone();
+  return { reading, mayEdit, rigName: rig?.name ?? "Rig", timeZone };
 }
 clientLoader.hydrate = true as const;
 
@@ -26,7 +30,11 @@ export async function clientAction({ request, params }: Route.ClientActionArgs) 
     await deleteReading(db, params.rigId, params.readingId);
     return redirect(`/rigs/${params.rigId}/log`);
   }
-  const parsed = parseReadingForm({ ...(form as ReadingForm), direction: Number(form.currentA) >= 0 ? "charging" : "discharging" });
+  const timeZone = (await readRigLocal(params.rigId))?.model?.model.timeZone ?? phoneTimeZone();
+  const parsed = parseReadingForm(
+    { ...(form as ReadingForm), direction: Number(form.currentA) >= 0 ? "charging" : "discharging" },
+    { timeZone, temperatureUnit: form.temperatureUnit === "f" ? "f" : "c" },
+  );
   if (!parsed.ok) return { errors: parsed.errors };
   const before = await findReading(db, params.readingId);
   if (!before) throw data({ message: "That reading is not in this phone's logbook." }, { status: 404 });
@@ -46,8 +54,14 @@ export function HydrateFallback() {
   return <p role="status" className="p-4 text-night-200">Opening the reading…</p>;
 }
 
+export function meta({ loaderData }: Route.MetaArgs) {
+  return [{ title: loaderData ? `Reading · Logbook · ${loaderData.rigName} · Tilldawn` : "Reading · Logbook · Tilldawn" }];
+}
+
 export default function EditReading({ loaderData, params }: Route.ComponentProps) {
-  const { reading, mayEdit } = loaderData;
+  const { reading, mayEdit, timeZone } = loaderData;
+  const { time, units } = useDisplay(timeZone);
+  const tUnit = units.temperatureUnit;
   const result = useActionData() as { errors?: Record<string, string> } | undefined;
   const errors = result?.errors ?? {};
   const busy = useNavigation().state === "submitting";
@@ -55,9 +69,14 @@ export default function EditReading({ loaderData, params }: Route.ComponentProps
     { name: "bankVoltageV", label: "Bank voltage", unit: "V" },
     { name: "currentA", label: "Current (+ charging, − discharging)", unit: "A" },
     { name: "socPct", label: "State of charge", unit: "%" },
-    { name: "temperatureC", label: "Temperature", unit: "°C" },
+    { name: "temperatureC", label: "Temperature", unit: temperatureSymbol(tUnit) },
     { name: "solarWhToday", label: "Solar today", unit: "Wh" },
   ] as const;
+  const shown = (name: (typeof fields)[number]["name"]) => {
+    const v = reading[name];
+    if (v === null || v === undefined) return "";
+    return name === "temperatureC" ? String(Math.round(toTemperature(v, tUnit) * 10) / 10) : String(v);
+  };
   return (
     <div className="space-y-4">
       <p>
@@ -65,16 +84,17 @@ export default function EditReading({ loaderData, params }: Route.ComponentProps
           ‹ Logbook
         </Link>
       </p>
-      <h1 className="text-3xl font-bold">Reading of {fmtTime(reading.takenAt)}</h1>
+      <h1 className="text-3xl font-bold">Reading of {formatDateTime(reading.takenAt, time)}</h1>
       {!mayEdit ? (
         <p className="rounded-2xl border border-night-600 bg-night-900 p-4 text-night-200">Only the person who took this reading, or an owner, can change it.</p>
       ) : (
         <>
           <Form method="post" className="space-y-3 rounded-2xl border border-night-700 bg-night-900 p-4" noValidate>
             <input type="hidden" name="intent" value="edit" />
+            <input type="hidden" name="temperatureUnit" value={tUnit} />
             <label className="block space-y-1 font-bold">
-              Taken at
-              <input name="takenAt" type="datetime-local" defaultValue={isoToLocalInput(reading.takenAt)} className="block min-h-12 w-full rounded-xl border border-night-600 bg-night-950 px-3 text-lg" />
+              Taken at <span className="font-normal text-night-300">(the rig's time, {timeZone})</span>
+              <input name="takenAt" type="datetime-local" defaultValue={isoToLocalInput(reading.takenAt, timeZone)} className="block min-h-12 w-full rounded-xl border border-night-600 bg-night-950 px-3 text-lg" />
             </label>
             {fields.map((f) => (
               <label key={f.name} className="block space-y-1 font-bold">
@@ -82,7 +102,7 @@ export default function EditReading({ loaderData, params }: Route.ComponentProps
                 <input
                   name={f.name}
                   inputMode="decimal"
-                  defaultValue={reading[f.name] ?? ""}
+                  defaultValue={shown(f.name)}
                   aria-invalid={errors[f.name] ? true : undefined}
                   className="block min-h-12 w-full rounded-xl border border-night-600 bg-night-950 px-3 text-lg tabular"
                 />

@@ -1,9 +1,12 @@
 import { useMemo, useState } from "react";
-import { data, Link } from "react-router";
+import { data, Link, redirect } from "react-router";
 import Papa from "papaparse";
 import type { Route } from "./+types/rig.log.import";
-import { convertRows, detectUnits, FIELDS, guessMapping, type Converted, type Field, type Mapping, type Units } from "~/components/log/csv-import";
-import { fmt, fmtCurrent, fmtTime } from "~/components/log/format";
+import { convertRows, detectUnits, FIELDS, guessMapping, type Converted, type Field, type Mapping, type Units } from "~/logbook/csv-import";
+import { count, fmt, fmtCurrent, fmtTemperature } from "~/logbook/format";
+import { formatDateTime, phoneTimeZone } from "~/lib/datetime";
+import { useDisplay } from "~/hooks/use-display";
+import { fetchRig, readRigLocal } from "~/offline/rig-data.client";
 import { getMeta, localDb } from "~/offline/db.client";
 import { addReadings } from "~/offline/outbox.client";
 import { readingsInRange } from "~/offline/readings-store.client";
@@ -12,11 +15,28 @@ import { readingsInRange } from "~/offline/readings-store.client";
 const MAX_BYTES = 40 * 1024 * 1024;
 const WRITE_CHUNK = 1000;
 
-export async function clientLoader({ params }: Route.ClientLoaderArgs) {
-  const rig = await localDb().rigs.get(params.rigId);
-  if (!rig) throw data({ message: "Open the rig's logbook once with a connection first." }, { status: 404 });
-  if (rig.role === "guest") throw data({ message: "Guests follow this rig read-only and cannot import readings." }, { status: 403 });
-  return { rigId: rig.id, name: rig.name, userId: rig.userId ?? (await getMeta<string | null>(localDb(), "userId", null)) };
+export async function clientLoader({ params, request }: Route.ClientLoaderArgs) {
+  let snap = await readRigLocal(params.rigId);
+  if (!snap) {
+    // A direct link in a browser that has never opened this rig: fetch it first, as the logbook does.
+    const outcome = await fetchRig(params.rigId);
+    if (outcome === "signed-out") throw redirect(`/sign-in?${new URLSearchParams({ redirectTo: new URL(request.url).pathname })}`);
+    if (outcome === "not-found") throw data({ message: "There is no such rig, or it is not shared with you." }, { status: 404 });
+    snap = await readRigLocal(params.rigId);
+    if (!snap) throw data({ message: "This rig has not been opened on this phone yet. Open it once with a connection to import readings offline." }, { status: 503 });
+  }
+  const { rig } = snap;
+  return {
+    rigId: rig.id,
+    name: rig.name,
+    guest: rig.role === "guest",
+    timeZone: snap.model?.model.timeZone ?? phoneTimeZone(),
+    userId: rig.userId ?? (await getMeta<string | null>(localDb(), "userId", null)),
+  };
+}
+
+export function meta({ loaderData }: Route.MetaArgs) {
+  return [{ title: loaderData ? `Import readings · ${loaderData.name} · Tilldawn` : "Import readings · Tilldawn" }];
 }
 clientLoader.hydrate = true as const;
 
@@ -36,7 +56,8 @@ const unitChoices: Array<{ key: keyof Omit<Units, "invertCurrent">; label: strin
 ];
 
 export default function ImportReadings({ loaderData }: Route.ComponentProps) {
-  const { rigId, name, userId } = loaderData;
+  const { rigId, name, userId, guest, timeZone } = loaderData;
+  const { time, units: shownUnits } = useDisplay(timeZone);
   const [file, setFile] = useState<Parsed | null>(null);
   const [problem, setProblem] = useState<string | null>(null);
   const [mapping, setMapping] = useState<Mapping>({});
@@ -69,7 +90,7 @@ export default function ImportReadings({ loaderData }: Route.ComponentProps) {
     if (!file || !units) return;
     const db = localDb();
     const existing = new Set((await readingsInRange(db, rigId)).map((r) => r.takenAt));
-    setChecked(await convertRows(rigId, file.rows, mapping, units, existing));
+    setChecked(await convertRows(rigId, file.rows, mapping, units, existing, timeZone));
   }
 
   async function save() {
@@ -86,6 +107,31 @@ export default function ImportReadings({ loaderData }: Route.ComponentProps) {
   }
 
   const preview = useMemo(() => checked?.readings.slice(0, 8) ?? [], [checked]);
+
+  if (guest) {
+    return (
+      <div className="space-y-5">
+        <p>
+          <Link to={`/rigs/${rigId}/log`} className="inline-flex min-h-11 items-center font-bold text-night-300 underline">
+            ‹ Logbook of {name}
+          </Link>
+        </p>
+        <h1 className="text-3xl font-bold">Importing is for the rig's crew</h1>
+        <p className="text-night-200">
+          You follow {name} as a guest, so you can read its logbook but not add to it. You can still read every reading in the logbook, or take
+          them all away as a CSV file. To import readings, ask one of the rig's owners to make you crew on its People page.
+        </p>
+        <p className="flex flex-wrap gap-3">
+          <Link to={`/rigs/${rigId}/log`} className="inline-flex min-h-12 items-center rounded-xl bg-dawn-500 px-5 font-bold text-night-950">
+            Open the logbook
+          </Link>
+          <a href={`/api/rigs/${rigId}/readings.csv`} download className="inline-flex min-h-12 items-center rounded-xl border border-night-600 px-5 font-bold">
+            Export the readings as CSV
+          </a>
+        </p>
+      </div>
+    );
+  }
 
   return (
     <div className="space-y-5">
@@ -109,7 +155,7 @@ export default function ImportReadings({ loaderData }: Route.ComponentProps) {
       {file && units ? (
         <section aria-labelledby="map-heading" className="space-y-3 rounded-2xl border border-night-700 bg-night-900 p-4">
           <h2 id="map-heading" className="text-xl font-bold">
-            2. Match the columns <span className="text-sm font-normal text-night-300">({file.rows.length.toLocaleString()} rows in {file.name})</span>
+            2. Match the columns <span className="text-sm font-normal text-night-300">({count(file.rows.length, "row")} in {file.name})</span>
           </h2>
           <div className="grid gap-3 md:grid-cols-2">
             {FIELDS.map(({ field, label }) => (
@@ -168,18 +214,19 @@ export default function ImportReadings({ loaderData }: Route.ComponentProps) {
             Preview
           </h2>
           <p role="status" className="tabular">
-            {checked.readings.length.toLocaleString()} readings to import · {checked.duplicates.toLocaleString()} already in the logbook (skipped) ·{" "}
-            {checked.errors.length.toLocaleString()} rows with problems
+            {count(checked.readings.length, "reading")} to import · {count(checked.duplicates, "row")} already in the logbook (skipped)
+            {checked.repeated ? ` · ${count(checked.repeated, "row")} repeating a time earlier in this file (skipped)` : ""} ·{" "}
+            {count(checked.errors.length, "row")} with problems
           </p>
           {preview.length ? (
             <ul className="divide-y divide-night-800 tabular text-sm">
               {preview.map((r) => (
                 <li key={r.id} className="flex flex-wrap gap-x-4 py-1">
-                  <span>{fmtTime(Date.parse(r.takenAt))}</span>
+                  <span>{formatDateTime(Date.parse(r.takenAt), time)}</span>
                   <span>{fmt(r.bankVoltageV ?? null, 2, "V")}</span>
                   <span>{fmtCurrent(r.currentA ?? null)}</span>
                   <span>{fmt(r.socPct ?? null, 0, "%")}</span>
-                  <span>{fmt(r.temperatureC ?? null, 0, "°C")}</span>
+                  <span>{fmtTemperature(r.temperatureC ?? null, shownUnits)}</span>
                   <span>{fmt(r.solarWhToday ?? null, 0, "Wh")}</span>
                 </li>
               ))}
@@ -194,12 +241,12 @@ export default function ImportReadings({ loaderData }: Route.ComponentProps) {
                     Row {e.row}: {e.message}
                   </li>
                 ))}
-                {checked.errors.length > 200 ? <li>…and {checked.errors.length - 200} more.</li> : null}
+                {checked.errors.length > 200 ? <li>…and {count(checked.errors.length - 200, "more row", "more rows")}.</li> : null}
               </ul>
             </details>
           ) : null}
           <button type="button" onClick={() => void save()} disabled={!checked.readings.length || progress !== null && finished === null} className="min-h-14 w-full rounded-xl bg-dawn-500 text-lg font-bold text-night-950 disabled:opacity-50">
-            Import {checked.readings.length.toLocaleString()} readings
+            Import {count(checked.readings.length, "reading")}
           </button>
         </section>
       ) : null}
@@ -214,7 +261,7 @@ export default function ImportReadings({ loaderData }: Route.ComponentProps) {
       ) : null}
       {finished !== null ? (
         <p role="status" className="rounded-2xl border border-leaf-400 bg-night-900 p-4">
-          {finished.toLocaleString()} readings saved on this phone; they sync to the server in the background.{" "}
+          {count(finished, "reading")} saved on this phone; {finished === 1 ? "it syncs" : "they sync"} to the server in the background.{" "}
           <Link to={`/rigs/${rigId}/log`} className="font-bold underline">
             Back to the logbook
           </Link>

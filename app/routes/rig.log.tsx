@@ -4,11 +4,14 @@ import type { Route } from "./+types/rig.log";
 import { ReadingForm } from "~/components/log/reading-form";
 import { ReadingChart, type ChartSeries } from "~/components/log/reading-chart";
 import { ReadingsTable, type TableFilter } from "~/components/log/readings-table";
-import { parseReadingForm, type ReadingForm as ReadingFormValues } from "~/components/log/reading-input";
-import { healthTrend } from "~/components/log/health";
+import { parseReadingForm, type ReadingForm as ReadingFormValues } from "~/logbook/reading-input";
+import { healthTrend } from "~/logbook/health";
 import { SyncStatusBar } from "~/components/sync-status";
 import { getMeta, localDb, type LocalReading } from "~/offline/db.client";
-import { useLive } from "~/offline/live.client";
+import { useLiveQuery } from "dexie-react-hooks";
+import { useDisplay } from "~/hooks/use-display";
+import { fromLocal, phoneTimeZone } from "~/lib/datetime";
+import { count } from "~/logbook/format";
 import { addReadings, deleteReading } from "~/offline/outbox.client";
 import { fetchRig, readRigLocal } from "~/offline/rig-data.client";
 import { readingsInRange } from "~/offline/readings-store.client";
@@ -39,7 +42,8 @@ export async function clientLoader({ params, request }: Route.ClientLoaderArgs) 
     void fetchRig(rigId);
   }
   const userId = snap.rig.userId ?? (await getMeta<string | null>(localDb(), "userId", null));
-  return { rigId, name: snap.rig.name, role: snap.rig.role, userId, model: snap.model?.model ?? null };
+  const model = snap.model?.model ?? null;
+  return { rigId, name: snap.rig.name, role: snap.rig.role, userId, model, timeZone: model?.timeZone ?? phoneTimeZone() };
 }
 clientLoader.hydrate = true as const;
 
@@ -52,7 +56,11 @@ export async function clientAction({ request, params }: Route.ClientActionArgs) 
     await deleteReading(db, params.rigId, form.readingId);
     return { ok: true as const, savedAt: Date.now() };
   }
-  const parsed = parseReadingForm(form as ReadingFormValues);
+  const model = (await readRigLocal(params.rigId))?.model?.model;
+  const parsed = parseReadingForm(form as ReadingFormValues, {
+    timeZone: model?.timeZone ?? phoneTimeZone(),
+    temperatureUnit: form.temperatureUnit === "f" ? "f" : "c",
+  });
   if (!parsed.ok) return { ok: false as const, errors: parsed.errors };
   await addReadings(db, params.rigId, [parsed.reading], userId);
   return { ok: true as const, savedAt: Date.now() };
@@ -79,22 +87,22 @@ const ranges = [
 type RangeId = (typeof ranges)[number]["id"];
 
 export default function Logbook({ loaderData }: Route.ComponentProps) {
-  const { rigId, name, role, userId, model } = loaderData;
+  const { rigId, name, role, userId, model, timeZone } = loaderData;
+  const display = useDisplay(timeZone);
   const canWrite = role !== "guest";
   const [range, setRange] = useState<RangeId>("week");
   const [filter, setFilter] = useState<TableFilter>({ from: "", to: "", source: "", only: "" });
   const [page, setPage] = useState(0);
   const [server, setServer] = useState<{ range: RangeId; series: ChartSeries; bucketS: number } | null>(null);
 
-  const all = useLive(
-    () => readingsInRange(localDb(), rigId),
-    [rigId],
-    [] as LocalReading[],
-  );
+  // The phone's readings, re-read whenever the local store changes (Dexie's liveQuery).
+  const live = useLiveQuery(() => readingsInRange(localDb(), rigId), [rigId]);
+  const all = { data: live ?? ([] as LocalReading[]), loading: live === undefined };
 
   const filtered = useMemo(() => {
-    const from = filter.from ? new Date(`${filter.from}T00:00`).getTime() : -Infinity;
-    const to = filter.to ? new Date(`${filter.to}T23:59:59`).getTime() : Infinity;
+    // The filter's days are the rig's calendar days.
+    const from = filter.from ? (fromLocal(`${filter.from}T00:00:00`, timeZone, "yyyy-MM-dd'T'HH:mm:ss") ?? -Infinity) : -Infinity;
+    const to = filter.to ? (fromLocal(`${filter.to}T23:59:59`, timeZone, "yyyy-MM-dd'T'HH:mm:ss") ?? Infinity) : Infinity;
     return all.data.filter(
       (r) =>
         r.takenAt >= from &&
@@ -102,7 +110,7 @@ export default function Logbook({ loaderData }: Route.ComponentProps) {
         (!filter.source || r.source === filter.source) &&
         (!filter.only || (filter.only === "waiting" ? r.sync === "pending" : r.sync === "refused")),
     );
-  }, [all.data, filter]);
+  }, [all.data, filter, timeZone]);
   const pages = Math.max(1, Math.ceil(filtered.length / PAGE));
   const shown = filtered.slice(page * PAGE, page * PAGE + PAGE);
 
@@ -131,7 +139,7 @@ export default function Logbook({ loaderData }: Route.ComponentProps) {
   const series = server && server.range === range ? server.series : localSeries;
 
   const house = model?.banks.find((b) => b.role === "house") ?? model?.banks[0];
-  const trend = useMemo(() => (house ? healthTrend(house, all.data) : []), [house, all.data]);
+  const trend = useMemo(() => (house ? healthTrend(house, all.data, timeZone) : []), [house, all.data, timeZone]);
 
   const canEdit = (r: LocalReading) => canWrite && (role === "owner" || (r.authorId !== null && r.authorId === userId));
   const remove = async (r: LocalReading) => {
@@ -151,7 +159,7 @@ export default function Logbook({ loaderData }: Route.ComponentProps) {
         <SyncStatusBar />
       </header>
 
-      <ReadingForm canWrite={canWrite} />
+      <ReadingForm canWrite={canWrite} timeZone={timeZone} temperatureUnit={display.units.temperatureUnit} />
 
       <section aria-labelledby="chart-heading" className="space-y-3 rounded-2xl border border-night-700 bg-night-900 p-4">
         <div className="flex flex-wrap items-center justify-between gap-2">
@@ -173,7 +181,7 @@ export default function Logbook({ loaderData }: Route.ComponentProps) {
           </div>
         </div>
         {series.t.length ? (
-          <ReadingChart data={series} label={`Bank voltage and state of charge over the last ${range}: ${series.t.length} points`} />
+          <ReadingChart data={series} time={display.time} label={`Bank voltage and state of charge over the last ${range}: ${count(series.t.length, "point")}`} />
         ) : (
           <p className="text-night-300">{all.loading ? "Reading the logbook…" : "No readings in this range yet."}</p>
         )}
@@ -251,14 +259,12 @@ export default function Logbook({ loaderData }: Route.ComponentProps) {
         </fieldset>
         {all.loading ? (
           <p role="status" className="text-night-300">Reading the logbook…</p>
-        ) : all.error ? (
-          <p role="alert" className="text-ember-300">The logbook on this phone could not be read: {all.error.message}</p>
         ) : shown.length === 0 ? (
           <p className="rounded-2xl border border-night-700 bg-night-900 p-4 text-night-200">
             {all.data.length ? "No readings match these filters." : "No readings yet. Add the first one above — it is saved on this phone at once."}
           </p>
         ) : (
-          <ReadingsTable rows={shown} rigId={rigId} canEdit={canEdit} onDelete={(r) => void remove(r)} />
+          <ReadingsTable rows={shown} rigId={rigId} canEdit={canEdit} onDelete={(r) => void remove(r)} time={display.time} units={display.units} />
         )}
         {pages > 1 ? (
           <nav aria-label="Pages of readings" className="flex items-center justify-between gap-2">

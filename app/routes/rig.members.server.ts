@@ -65,6 +65,9 @@ export async function membersAction({ request, params }: Route.ActionArgs) {
     case MEMBERS_INTENT.role: {
       const submission = parseWithZod(form, { schema: roleFormSchema });
       if (submission.status !== "success") return answer(400, { intent, result: submission.reply({ formErrors: ["Choose a member and a role."] }) });
+      if (submission.value.userId === user.id) {
+        return answer(400, { intent, result: submission.reply({ formErrors: ["You cannot change your own role: another owner can change it for you."] }) });
+      }
       const refused = await byTheRules(() => changeRole(db, rig.id, submission.value.userId, submission.value.role));
       if (!refused.ok) return answer(refused.status, { intent, result: submission.reply({ formErrors: [refused.message] }) });
       return answer(200, { intent, result: submission.reply(), ok: `Role changed to ${roleLabel[submission.value.role].toLowerCase()}.` });

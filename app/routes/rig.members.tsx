@@ -9,6 +9,7 @@ import { getDb } from "~/db/db.server";
 import { answerFor, fieldProps, formError } from "~/lib/forms";
 import { listMembers, listPendingInvites } from "~/repos/members.server";
 import { inviteFormSchema, MEMBERS_INTENT } from "~/schemas/members";
+import { OfflineCopy } from "~/components/offline-copy";
 import { Button, Card, Field, Notice } from "~/components/ui/form";
 import { membersAction, type MembersAnswer } from "./rig.members.server";
 
@@ -21,6 +22,12 @@ export async function loader({ request, params }: Route.LoaderArgs) {
     role === "owner" ? listPendingInvites(db, rig.id) : Promise.resolve([]),
   ]);
   return { rig, role, me: user.id, members, invites };
+}
+
+/** Offline: the copy this phone kept the last time the page was shown online. */
+export async function clientLoader({ serverLoader, params }: Route.ClientLoaderArgs) {
+  const { serverOrPhoneCopy } = await import("~/offline/offline-loader.client");
+  return serverOrPhoneCopy(`members:${params.rigId}`, serverLoader);
 }
 
 export const action = protectedAction(membersAction);
@@ -56,6 +63,7 @@ export default function Members({ loaderData }: Route.ComponentProps) {
         <a href={`/rigs/${rig.id}/alerts`} className="inline-flex min-h-11 items-center font-bold text-dawn-300 underline underline-offset-4">
           Alerts: warn me before the cutoff
         </a>
+      <OfflineCopy pageKey={`members:${rig.id}`} data={loaderData} copy={"offlineCopy" in loaderData ? loaderData.offlineCopy : null} what="Invitations and role changes" />
       </header>
 
       <div aria-live="polite" className="space-y-2">
@@ -78,7 +86,10 @@ export default function Members({ loaderData }: Route.ComponentProps) {
                 {roleLabel[m.role]}
               </span>
             </div>
-            {isOwner ? (
+            {isOwner && m.userId === me ? (
+              <p className="text-sm text-night-300">Your own role can be changed by another owner of the rig.</p>
+            ) : null}
+            {isOwner && m.userId !== me ? (
               <div className="flex flex-wrap items-end gap-2">
                 <Form method="post" className="flex items-end gap-2">
                   <input type="hidden" name="intent" value={MEMBERS_INTENT.role} />
@@ -101,15 +112,13 @@ export default function Members({ loaderData }: Route.ComponentProps) {
                     Change role
                   </Button>
                 </Form>
-                {m.userId !== me ? (
-                  <Form method="post">
-                    <input type="hidden" name="intent" value={MEMBERS_INTENT.remove} />
-                    <input type="hidden" name="userId" value={m.userId} />
-                    <Button type="submit" variant="danger" aria-label={`Remove ${m.name || m.email} from the rig`}>
-                      Remove
-                    </Button>
-                  </Form>
-                ) : null}
+                <Form method="post">
+                  <input type="hidden" name="intent" value={MEMBERS_INTENT.remove} />
+                  <input type="hidden" name="userId" value={m.userId} />
+                  <Button type="submit" variant="danger" aria-label={`Remove ${m.name || m.email} from the rig`}>
+                    Remove
+                  </Button>
+                </Form>
               </div>
             ) : null}
           </li>

@@ -10,6 +10,7 @@ import { starterModel } from "~/repos/starter-model";
 import { fieldProps } from "~/lib/forms";
 import { createRigFormSchema } from "~/schemas/rigs";
 import { RigList } from "~/components/account/rig-list";
+import { OfflineCopy } from "~/components/offline-copy";
 import { Button, Card, Field } from "~/components/ui/form";
 import { readForm } from "~/lib/http";
 
@@ -18,6 +19,12 @@ export async function loader({ request }: Route.LoaderArgs) {
   const user = await requireUser(request);
   const rigs = await listRigsForUser(getDb(), user.id);
   return { rigs: rigs.map(({ id, name, role }) => ({ id, name, role })) };
+}
+
+/** Offline: the copy this phone kept the last time the page was shown online. */
+export async function clientLoader({ serverLoader }: Route.ClientLoaderArgs) {
+  const { serverOrPhoneCopy } = await import("~/offline/offline-loader.client");
+  return serverOrPhoneCopy("rigs", serverLoader);
 }
 
 export const action = protectedAction(async ({ request }: Route.ActionArgs) => {
@@ -45,6 +52,7 @@ export default function Rigs({ loaderData }: Route.ComponentProps) {
   return (
     <div className="space-y-6">
       <h1 className="text-3xl font-bold">Rigs</h1>
+      <OfflineCopy pageKey={"rigs"} data={loaderData} copy={"offlineCopy" in loaderData ? loaderData.offlineCopy : null} what="Creating a rig and opening a rig not kept on this phone" />
       {rigs.length === 0 ? (
         <p className="rounded-2xl border border-night-700 bg-night-900 p-4 text-night-200">
           You are not on any rig yet. Create one below, or open an invitation link from a rig's owner.

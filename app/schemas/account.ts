@@ -7,6 +7,8 @@ import { z } from "zod";
 export const lengthUnits = ["metric", "imperial"] as const;
 export const cableUnits = ["awg", "mm2"] as const;
 export const temperatureUnits = ["c", "f"] as const;
+/** Times on a 24-hour or a 12-hour clock (`app/lib/datetime.ts` formats with it). */
+export const clocks = ["24h", "12h"] as const;
 
 export const nameSchema = z
   .string({ error: "Enter your name." })
@@ -19,6 +21,7 @@ export const preferencesSchema = z.object({
   cableUnit: z.enum(cableUnits, { error: "Choose AWG or mm²." }),
   temperatureUnit: z.enum(temperatureUnits, { error: "Choose °C or °F." }),
   nightDefault: z.boolean(),
+  clock: z.enum(clocks, { error: "Choose a 24-hour or a 12-hour clock." }),
 });
 export type Preferences = z.infer<typeof preferencesSchema>;
 
@@ -28,6 +31,7 @@ export const defaultPreferences: Preferences = {
   cableUnit: "mm2",
   temperatureUnit: "c",
   nightDefault: false,
+  clock: "24h",
 };
 
 /**

@@ -44,7 +44,7 @@ describe("CSV import in the logbook", () => {
 
     const first = await importOnce();
     expect(first).toContain("4 readings to import");
-    expect(first).toContain("1 rows with problems");
+    expect(first).toContain("1 row with problems");
     await page.getByRole("button", { name: "Import 4 readings" }).click();
     await page.getByText("4 readings saved on this phone").waitFor();
 
@@ -57,7 +57,7 @@ describe("CSV import in the logbook", () => {
 
     const again = await importOnce();
     expect(again).toContain("0 readings to import");
-    expect(again).toContain("4 already in the logbook");
+    expect(again).toContain("4 rows already in the logbook");
     expect((await stored()).length).toBe(4);
     await context.close();
   });

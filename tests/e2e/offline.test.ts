@@ -115,7 +115,7 @@ describe("Offline first in Chromium", () => {
     await signIn(other, demoPerson("owner").email);
     const adaPage = await other.newPage();
     await adaPage.goto(`${baseUrl()}/rigs/${juniper.rigId}/log`);
-    for (const n of [1, 2, 3]) await adaPage.getByText(`${tag} #${n}`).waitFor({ timeout: 15_000 });
+    for (const n of [1, 2, 3]) await adaPage.getByText(`${tag} #${n}`).filter({ visible: true }).waitFor({ timeout: 15_000 });
     await other.close();
     await context.close();
   });

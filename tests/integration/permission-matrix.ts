@@ -91,7 +91,7 @@ export const permissionMatrix: Record<string, RouteRow> = {
     GET: { expect: "notAllowed" },
     POST: { expect: members(), json: (ctx) => ({ rigId: ctx.rigId, cursor: null, changes: [] }) },
   },
-  "routes/api.rigs.$rigId.readings.ts": { GET: { expect: members() } },
+  "routes/api.rigs.$rigId.readings.ts": { GET: { expect: members() }, POST: { expect: "notAllowed", json: () => ({}), csrf: false } },
   "routes/api.rigs.$rigId.readings.csv.ts": { GET: { expect: members() } },
   "routes/api.rigs.$rigId.model.ts": { GET: { expect: members() } },
   "routes/api.rigs.$rigId.state.ts": { GET: { expect: members() }, POST: { expect: crewUp(), json: () => ({}) } },

@@ -125,7 +125,7 @@ function Bar({ share, standby }: { share: number; standby?: boolean }) {
 
 function Stat({ label, value, explain, tone }: { label: string; value: string; explain: Parameters<typeof Explainable>[0]["explanation"]; tone?: "good" | "bad" }) {
   return (
-    <div className="rounded-2xl border border-night-700 bg-night-900 p-3">
+    <div className="rounded-2xl border border-night-700 bg-night-900 p-3" data-tone={tone}>
       <dt className="text-sm text-night-300">{label}</dt>
       <dd className={cn("text-xl font-bold", tone === "good" && "text-leaf-400", tone === "bad" && "text-ember-300")}>
         <Explainable explanation={explain}>{value}</Explainable>

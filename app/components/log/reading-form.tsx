@@ -1,7 +1,8 @@
 import { useEffect, useRef, useState } from "react";
 import { Form, useActionData, useNavigation } from "react-router";
 import { cn } from "~/lib/cn";
-import { isoToLocalInput } from "./reading-input";
+import { isoToLocalInput } from "~/logbook/reading-input";
+import { temperatureSymbol, type UnitPrefs } from "~/lib/units";
 
 type Errors = Partial<Record<string, string>>;
 
@@ -42,7 +43,7 @@ function NumberField({ name, label, unit, hint, error, defaultValue }: { name: s
 }
 
 /** Add a reading in a few taps: voltage, current (size + direction), SoC; the rest is optional. */
-export function ReadingForm({ canWrite }: { canWrite: boolean }) {
+export function ReadingForm({ canWrite, timeZone, temperatureUnit }: { canWrite: boolean; timeZone: string; temperatureUnit: UnitPrefs["temperatureUnit"] }) {
   const result = useActionData() as { ok: boolean; errors?: Errors; savedAt?: number } | undefined;
   const navigation = useNavigation();
   const busy = navigation.state === "submitting" && navigation.formData?.get("intent") === "add";
@@ -50,7 +51,7 @@ export function ReadingForm({ canWrite }: { canWrite: boolean }) {
   const [direction, setDirection] = useState<"discharging" | "charging">("discharging");
   const [more, setMore] = useState(false);
   const [nowValue, setNowValue] = useState("");
-  useEffect(() => setNowValue(isoToLocalInput(Date.now())), [result?.savedAt]);
+  useEffect(() => setNowValue(isoToLocalInput(Date.now(), timeZone)), [result?.savedAt, timeZone]);
   useEffect(() => {
     if (result?.ok) formRef.current?.reset();
   }, [result]);
@@ -66,6 +67,7 @@ export function ReadingForm({ canWrite }: { canWrite: boolean }) {
       </h2>
       <input type="hidden" name="intent" value="add" />
       <input type="hidden" name="direction" value={direction} />
+      <input type="hidden" name="temperatureUnit" value={temperatureUnit} />
       <div className="grid grid-cols-2 gap-3">
         <NumberField name="bankVoltageV" label="Bank voltage" unit="V" error={errors.bankVoltageV} />
         <NumberField name="socPct" label="State of charge" unit="%" error={errors.socPct} />
@@ -95,7 +97,7 @@ export function ReadingForm({ canWrite }: { canWrite: boolean }) {
         <div className="grid grid-cols-2 gap-3 pt-2">
           <div className="col-span-2 space-y-1">
             <label htmlFor="reading-takenAt" className="block text-sm font-bold text-night-200">
-              Taken at
+              Taken at <span className="font-normal text-night-300">(the rig's time, {timeZone})</span>
             </label>
             <input
               id="reading-takenAt"
@@ -108,7 +110,7 @@ export function ReadingForm({ canWrite }: { canWrite: boolean }) {
             />
             {errors.takenAt ? <p className="text-sm font-bold text-ember-300">{errors.takenAt}</p> : null}
           </div>
-          <NumberField name="temperatureC" label="Temperature" unit="°C" error={errors.temperatureC} />
+          <NumberField name="temperatureC" label="Temperature" unit={temperatureSymbol(temperatureUnit)} error={errors.temperatureC} />
           <NumberField name="solarWhToday" label="Solar today" unit="Wh" error={errors.solarWhToday} />
           <div className="col-span-2 space-y-1">
             <label htmlFor="reading-note" className="block text-sm font-bold text-night-200">

@@ -7,6 +7,8 @@
  * the server.
  */
 import { newReadingSchema, READING_VALUE_KEYS, type NewReading, type ReadingValueKey } from "~/schemas/readings";
+import { fromLocal } from "~/lib/datetime";
+import { parseDecimal } from "~/lib/numbers";
 
 export type Field = "takenAt" | ReadingValueKey | "note";
 export const FIELDS: Array<{ field: Field; label: string }> = [
@@ -57,9 +59,8 @@ export function guessMapping(headers: string[]): Mapping {
 }
 
 const num = (s: string | undefined) => {
-  const t = (s ?? "").trim().replace(/\s+/g, "").replace(",", ".");
-  if (t === "" || !/^[-+]?(\d+\.?\d*|\.\d+)([eE][-+]?\d+)?$/.test(t)) return null;
-  return Number(t);
+  const n = parseDecimal(s);
+  return n === "bad" ? null : n;
 };
 
 function median(values: number[]): number | null {
@@ -109,16 +110,23 @@ export function detectTimeFormat(samples: string[]): TimeFormat {
   return "dmy";
 }
 
-/** Parses one time cell; local times (no zone given) are read in the phone's time zone. */
-export function parseTime(text: string, format: TimeFormat): number | null {
+/**
+ * Parses one time cell. A time with no zone written in it is read in `timeZone` (the rig's),
+ * with date-fns, so a file written on the rig means the rig's clock whatever the phone's zone.
+ */
+export function parseTime(text: string, format: TimeFormat, timeZone: string): number | null {
   const x = text.trim();
   if (!x) return null;
   if (format === "epoch-ms") return /^\d+$/.test(x) ? Number(x) : null;
   if (format === "epoch-s") return /^\d+(\.\d+)?$/.test(x) ? Math.round(Number(x) * 1000) : null;
   if (format === "iso") {
     const withT = x.replace(" ", "T");
-    const ms = Date.parse(/[zZ]|[+-]\d{2}:?\d{2}$/.test(withT) ? withT : withT);
-    return isNaN(ms) ? null : ms;
+    if (/[zZ]|[+-]\d{2}:?\d{2}$/.test(withT)) {
+      const ms = Date.parse(withT);
+      return isNaN(ms) ? null : ms;
+    }
+    const m = /^(\d{4}-\d{2}-\d{2})T(\d{1,2}):(\d{2})(?::(\d{2}))?/.exec(withT);
+    return m ? fromLocal(`${m[1]} ${m[2]!.padStart(2, "0")}:${m[3]}:${m[4] ?? "00"}`, timeZone, "yyyy-MM-dd HH:mm:ss") : null;
   }
   const m = /^(\d{1,4})[/.-](\d{1,2})[/.-](\d{1,4})(?:[ T,]+(\d{1,2}):(\d{2})(?::(\d{2}))?\s*(am|pm)?)?$/i.exec(x);
   if (!m) return null;
@@ -129,9 +137,8 @@ export function parseTime(text: string, format: TimeFormat): number | null {
   if (y < 100) y += 2000;
   let h = Number(m[4] ?? 0);
   if (m[7]) h = (h % 12) + (/pm/i.test(m[7]) ? 12 : 0);
-  const date = new Date(y, mo - 1, d, h, Number(m[5] ?? 0), Number(m[6] ?? 0));
-  if (date.getMonth() !== mo - 1 || date.getDate() !== d) return null;
-  return date.getTime();
+  const two = (n: number | string) => String(n).padStart(2, "0");
+  return fromLocal(`${y}-${two(mo)}-${two(d)} ${two(h)}:${two(m[5] ?? 0)}:${two(m[6] ?? 0)}`, timeZone, "yyyy-MM-dd HH:mm:ss");
 }
 
 export function toOurUnits(field: ReadingValueKey, value: number, units: Units): number {
@@ -161,29 +168,38 @@ export async function readingIdFor(rigId: string, takenAtMs: number): Promise<st
 }
 
 export type RowError = { row: number; message: string };
-export type Converted = { readings: NewReading[]; errors: RowError[]; duplicates: number };
+/**
+ * `duplicates`: rows whose time is already in the logbook; `repeated`: rows whose time came
+ * earlier in the same file (the first one is kept).
+ */
+export type Converted = { readings: NewReading[]; errors: RowError[]; duplicates: number; repeated: number };
 
 /**
  * Turns data rows into readings. `row` numbers in errors count the header as row 1, as a
  * spreadsheet shows them. `existing` holds times (ms) already in the logbook.
  */
-export async function convertRows(rigId: string, rows: string[][], mapping: Mapping, units: Units, existing: Set<number>): Promise<Converted> {
+export async function convertRows(rigId: string, rows: string[][], mapping: Mapping, units: Units, existing: Set<number>, timeZone: string): Promise<Converted> {
   const readings: NewReading[] = [];
   const errors: RowError[] = [];
   const seen = new Set<number>();
   let duplicates = 0;
-  if (mapping.takenAt === undefined) return { readings, errors: [{ row: 1, message: "Choose the column that holds the time." }], duplicates };
+  let repeated = 0;
+  if (mapping.takenAt === undefined) return { readings, errors: [{ row: 1, message: "Choose the column that holds the time." }], duplicates, repeated };
   for (let i = 0; i < rows.length; i++) {
     const cells = rows[i]!;
     const rowNo = i + 2;
     if (cells.every((c) => c.trim() === "")) continue;
-    const at = parseTime(cells[mapping.takenAt] ?? "", units.time);
+    const at = parseTime(cells[mapping.takenAt] ?? "", units.time, timeZone);
     if (at === null) {
       errors.push({ row: rowNo, message: `The time "${cells[mapping.takenAt] ?? ""}" could not be read.` });
       continue;
     }
-    if (seen.has(at) || existing.has(at)) {
+    if (existing.has(at)) {
       duplicates++;
+      continue;
+    }
+    if (seen.has(at)) {
+      repeated++;
       continue;
     }
     const values: Partial<Record<ReadingValueKey, number | null>> = {};
@@ -222,5 +238,5 @@ export async function convertRows(rigId: string, rows: string[][], mapping: Mapp
     seen.add(at);
     readings.push(checked.data);
   }
-  return { readings, errors, duplicates };
+  return { readings, errors, duplicates, repeated };
 }

@@ -3,6 +3,8 @@ import Papa from "papaparse";
 import { convertRows, detectTimeFormat, detectUnits, guessMapping, parseTime, readingIdFor } from "./csv-import";
 
 const RIG = "3f1d2c4b-5a69-4e7f-8a1b-2c3d4e5f6a7b";
+// The invented rig sits in Europe/Berlin: UTC+2 on 12–13 Oct 2025 (IANA tzdb).
+const TZ = "Europe/Berlin";
 
 // Invented Juniper exports in two made-up shapes.
 const plain = `Timestamp,Battery Voltage (V),Current (A),SoC (%),Temperature (°C),Solar today (Wh),Comment
@@ -27,10 +29,12 @@ describe("CSV import of a battery monitor's export", () => {
     expect(mapping).toEqual({ takenAt: 0, bankVoltageV: 1, currentA: 2, socPct: 3, temperatureC: 4, solarWhToday: 5, note: 6 });
     const units = detectUnits(headers!, rows, mapping);
     expect(units).toMatchObject({ voltage: "V", current: "A", soc: "pct", temperature: "C", solar: "Wh", time: "iso", invertCurrent: false });
-    const out = await convertRows(RIG, rows, mapping, units, new Set());
+    const out = await convertRows(RIG, rows, mapping, units, new Set(), TZ);
     expect(out.readings).toHaveLength(2);
     expect(out.readings[1]).toMatchObject({ bankVoltageV: 13.27, currentA: -4.3, socPct: 82, note: "fridge on", source: "csv" });
-    expect(out.duplicates).toBe(1);
+    // The same time twice in one file is a repeat, not "already in the logbook".
+    expect(out.duplicates).toBe(0);
+    expect(out.repeated).toBe(1);
     expect(out.errors).toEqual([
       { row: 5, message: '"abc" is not a number (Bank voltage).' },
       { row: 6, message: "State of charge must be at most 100 %" },
@@ -44,10 +48,11 @@ describe("CSV import of a battery monitor's export", () => {
     expect(mapping).toMatchObject({ takenAt: 0, bankVoltageV: 1, currentA: 2, socPct: 3, temperatureC: 4, solarWhToday: 5 });
     const units = detectUnits(headers!, rows, mapping);
     expect(units).toMatchObject({ voltage: "mV", current: "mA", soc: "fraction", temperature: "F", solar: "kWh", time: "dmy" });
-    const out = await convertRows(RIG, rows, mapping, units, new Set());
+    const out = await convertRows(RIG, rows, mapping, units, new Set(), TZ);
     expect(out.errors).toEqual([]);
     expect(out.readings[0]).toMatchObject({ bankVoltageV: 13.28, currentA: -4.1, socPct: 82, temperatureC: 14, solarWhToday: 1250 });
-    expect(new Date(out.readings[0]!.takenAt).getTime()).toBe(new Date(2025, 9, 12, 21, 0).getTime());
+    // "12.10.2025 21:00" with no zone is the rig's clock: 19:00 UTC, whatever the phone's zone.
+    expect(out.readings[0]!.takenAt).toBe("2025-10-12T19:00:00.000Z");
   });
 
   test("a flipped sign convention and readings already in the logbook", async () => {
@@ -55,9 +60,10 @@ describe("CSV import of a battery monitor's export", () => {
     const mapping = guessMapping(headers!);
     const units = { ...detectUnits(headers!, rows, mapping), invertCurrent: true };
     const existing = new Set([Date.parse("2025-10-12T01:00:00Z")]);
-    const out = await convertRows(RIG, rows, mapping, units, existing);
+    const out = await convertRows(RIG, rows, mapping, units, existing, TZ);
     expect(out.readings.map((r) => r.currentA)).toEqual([4.3]);
-    expect(out.duplicates).toBe(2);
+    expect(out.duplicates).toBe(1);
+    expect(out.repeated).toBe(1);
   });
 
   test("time formats: epoch seconds and milliseconds, month-first when the day is over 12, 12-hour clock", () => {
@@ -65,9 +71,11 @@ describe("CSV import of a battery monitor's export", () => {
     expect(detectTimeFormat(["1760230800000"])).toBe("epoch-ms");
     expect(detectTimeFormat(["10/13/2025 9:00"])).toBe("mdy");
     expect(detectTimeFormat(["13/10/2025 9:00"])).toBe("dmy");
-    expect(parseTime("1760230800", "epoch-s")).toBe(1760230800000);
-    expect(parseTime("10/13/2025 9:05 pm", "mdy")).toBe(new Date(2025, 9, 13, 21, 5).getTime());
-    expect(parseTime("31/02/2025 10:00", "dmy")).toBeNull();
+    expect(parseTime("1760230800", "epoch-s", TZ)).toBe(1760230800000);
+    expect(parseTime("10/13/2025 9:05 pm", "mdy", TZ)).toBe(Date.parse("2025-10-13T19:05:00Z"));
+    expect(parseTime("2025-10-13 21:05", "iso", TZ)).toBe(Date.parse("2025-10-13T19:05:00Z"));
+    expect(parseTime("2025-10-13T21:05:00Z", "iso", TZ)).toBe(Date.parse("2025-10-13T21:05:00Z"));
+    expect(parseTime("31/02/2025 10:00", "dmy", TZ)).toBeNull();
   });
 
   test("the same row always gets the same reading id, so a second import doubles nothing", async () => {

@@ -1,3 +1,4 @@
+CREATE TYPE "public"."clock_format" AS ENUM('24h', '12h');--> statement-breakpoint
 CREATE TABLE "alert_deliveries" (
 	"id" uuid PRIMARY KEY DEFAULT gen_random_uuid() NOT NULL,
 	"episode_id" uuid NOT NULL,
@@ -105,6 +106,7 @@ CREATE TABLE "push_subscriptions" (
 );
 --> statement-breakpoint
 ALTER TABLE "rig_state" ADD COLUMN "bank_socs" jsonb DEFAULT '{}'::jsonb NOT NULL;--> statement-breakpoint
+ALTER TABLE "user_preferences" ADD COLUMN "clock" "clock_format" DEFAULT '24h' NOT NULL;--> statement-breakpoint
 ALTER TABLE "alert_deliveries" ADD CONSTRAINT "alert_deliveries_episode_id_alert_episodes_id_fk" FOREIGN KEY ("episode_id") REFERENCES "public"."alert_episodes"("id") ON DELETE cascade ON UPDATE no action;--> statement-breakpoint
 ALTER TABLE "alert_deliveries" ADD CONSTRAINT "alert_deliveries_rig_id_rigs_id_fk" FOREIGN KEY ("rig_id") REFERENCES "public"."rigs"("id") ON DELETE cascade ON UPDATE no action;--> statement-breakpoint
 ALTER TABLE "alert_deliveries" ADD CONSTRAINT "alert_deliveries_user_id_users_id_fk" FOREIGN KEY ("user_id") REFERENCES "public"."users"("id") ON DELETE set null ON UPDATE no action;--> statement-breakpoint

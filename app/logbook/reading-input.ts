@@ -4,31 +4,31 @@
  * discharging), so nobody has to type a minus sign on a phone keypad.
  */
 import { newReadingSchema, READING_LIMITS, type NewReading, type ReadingValueKey } from "~/schemas/readings";
+import { fromLocalInput, toLocalInput } from "~/lib/datetime";
+import { parseDecimal } from "~/lib/numbers";
+import { fromTemperature, type UnitPrefs } from "~/lib/units";
 
 export type ReadingForm = Partial<Record<ReadingValueKey | "takenAt" | "note" | "direction", string>>;
 export type ParsedReading = { ok: true; reading: Omit<NewReading, "id"> } | { ok: false; errors: Partial<Record<keyof ReadingForm | "form", string>> };
 
-export function parseNumber(text: string | undefined): number | null | "bad" {
-  const t = (text ?? "").trim().replace(/\s+/g, "").replace(",", ".");
-  if (t === "") return null;
-  if (!/^[-+]?(\d+\.?\d*|\.\d+)$/.test(t)) return "bad";
-  return Number(t);
-}
+export const parseNumber = parseDecimal;
 
-/** `local` is a datetime-local value ("2025-10-12T21:40") read in the phone's own time zone. */
-export function localInputToIso(local: string | undefined, now = new Date()): string | null {
+/** How a form is read: the rig's time zone for the typed time, the person's temperature unit. */
+export type FormContext = { timeZone: string; temperatureUnit?: UnitPrefs["temperatureUnit"]; now?: Date };
+
+/** `local` is a datetime-local value ("2025-10-12T21:40") read in the rig's time zone. */
+export function localInputToIso(local: string | undefined, timeZone: string, now = new Date()): string | null {
   if (!local) return now.toISOString();
-  const d = new Date(local);
-  return isNaN(d.getTime()) ? null : d.toISOString();
+  const ms = fromLocalInput(local, timeZone);
+  return ms === null ? null : new Date(ms).toISOString();
 }
 
-export function isoToLocalInput(ms: number): string {
-  const d = new Date(ms);
-  const pad = (n: number) => String(n).padStart(2, "0");
-  return `${d.getFullYear()}-${pad(d.getMonth() + 1)}-${pad(d.getDate())}T${pad(d.getHours())}:${pad(d.getMinutes())}`;
+export function isoToLocalInput(ms: number, timeZone: string): string {
+  return toLocalInput(ms, timeZone);
 }
 
-export function parseReadingForm(form: ReadingForm, now = new Date()): ParsedReading {
+export function parseReadingForm(form: ReadingForm, context: FormContext): ParsedReading {
+  const now = context.now ?? new Date();
   const errors: Partial<Record<keyof ReadingForm | "form", string>> = {};
   const values: Partial<Record<ReadingValueKey, number | null>> = {};
   for (const key of Object.keys(READING_LIMITS) as ReadingValueKey[]) {
@@ -42,7 +42,10 @@ export function parseReadingForm(form: ReadingForm, now = new Date()): ParsedRea
     const typedSign = /^\s*[-+]/.test(form.currentA ?? "");
     values.currentA = typedSign ? values.currentA : form.direction === "charging" ? size : -size;
   }
-  const takenAt = localInputToIso(form.takenAt, now);
+  if (typeof values.temperatureC === "number" && context.temperatureUnit) {
+    values.temperatureC = Math.round(fromTemperature(values.temperatureC, context.temperatureUnit) * 100) / 100;
+  }
+  const takenAt = localInputToIso(form.takenAt, context.timeZone, now);
   if (!takenAt) errors.takenAt = "Give the date and time the reading was taken";
   if (Object.keys(errors).length) return { ok: false, errors };
   const checked = newReadingSchema.safeParse({ id: crypto.randomUUID(), takenAt, source: "hand", note: (form.note ?? "").trim(), ...values });

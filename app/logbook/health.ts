@@ -8,13 +8,14 @@
 import { estimateCapacity, type CapacityEstimate, type LogReading } from "~/engine/capacity";
 import type { Bank } from "~/engine/model";
 import type { LocalReading } from "~/offline/db.client";
+import { dayKey } from "~/lib/datetime";
 
 export const REST_A = 0.5;
 export const REST_MIN = 60;
 
 type Point = Pick<LocalReading, "takenAt" | "currentA" | "bankVoltageV" | "socPct">;
 
-export function toLogReadings(readings: Point[]): LogReading[] {
+export function toLogReadings(readings: Point[], timeZone = "UTC"): LogReading[] {
   const rs = [...readings].sort((a, b) => a.takenAt - b.takenAt);
   const out: LogReading[] = [];
   let restSince: number | null = null;
@@ -25,7 +26,7 @@ export function toLogReadings(readings: Point[]): LogReading[] {
     else restSince ??= r.takenAt;
     const entry: LogReading = { atMs: r.takenAt };
     if (r.currentA !== null) entry.currentA = r.currentA;
-    const day = new Date(r.takenAt).toISOString().slice(0, 10);
+    const day = dayKey(r.takenAt, timeZone);
     if (atRest && restSince !== null && r.bankVoltageV !== null && r.takenAt - restSince >= REST_MIN * 60_000 && day !== lastRestDay) {
       entry.restingV = r.bankVoltageV;
       lastRestDay = day;
@@ -37,16 +38,16 @@ export function toLogReadings(readings: Point[]): LogReading[] {
 
 export type HealthPoint = { month: string; estimate: CapacityEstimate };
 
-/** One capacity estimate per calendar month (UTC) that has readings, oldest first. */
-export function healthTrend(bank: Bank, readings: Point[]): HealthPoint[] {
+/** One capacity estimate per calendar month (in the rig's time zone) that has readings, oldest first. */
+export function healthTrend(bank: Bank, readings: Point[], timeZone = "UTC"): HealthPoint[] {
   const byMonth = new Map<string, Point[]>();
   for (const r of readings) {
-    const month = new Date(r.takenAt).toISOString().slice(0, 7);
+    const month = dayKey(r.takenAt, timeZone).slice(0, 7);
     let list = byMonth.get(month);
     if (!list) byMonth.set(month, (list = []));
     list.push(r);
   }
   return [...byMonth.entries()]
     .sort(([a], [b]) => a.localeCompare(b))
-    .map(([month, list]) => ({ month, estimate: estimateCapacity(bank, toLogReadings(list)) }));
+    .map(([month, list]) => ({ month, estimate: estimateCapacity(bank, toLogReadings(list, timeZone)) }));
 }
