@@ -46,7 +46,7 @@ export type RigSnapshot = {
 const FRESH_MS = 60 * 60_000;
 
 /** The state with the newest SoC we know (a device or hand reading may be newer than the shared entry). */
-function withNewestSoc(state: RigState, readings: RecentReading[]): { state: RigState; socAtMs: number | null } {
+export function withNewestSoc(state: RigState, readings: RecentReading[]): { state: RigState; socAtMs: number | null } {
   const fromReading = readings.find((r) => r.socPct !== null);
   const entryMs = state.soc ? Date.parse(state.soc.takenAt) : null;
   if (fromReading && (entryMs === null || fromReading.takenAtMs > entryMs)) {

@@ -14,7 +14,8 @@ import { alertDeliveries, alertEpisodes, alertPreferences, alertRules, modelBran
 import { validateModel, type RigModel } from "~/engine/model";
 import { getRigState, rowToState } from "~/repos/rig-state.server";
 import { emptyRigState } from "~/schemas/rig-state";
-import { evaluateConditions, type Condition, type RecentReading } from "./conditions";
+import { evaluateConditions, withNewestSoc, type Condition, type RecentReading } from "./conditions";
+import { alertDawnPlanLine } from "./dawn-line";
 import { mayNotify, rulesWithDefaults, TIME_BASED_RULES, type Preferences, type RigRules, type RuleKind } from "./rules";
 import { alertText } from "./text";
 import type { RigState } from "~/schemas/rig-state";
@@ -23,9 +24,29 @@ export type EvaluateOptions = {
   appUrl: string;
   /** Only these rules may open or clear episodes (the schedule passes the time-based ones). */
   only?: readonly RuleKind[];
-  /** Optional: one sentence of the engine's dawn plan for this rig, added to cutoff warnings. */
-  dawnPlanLine?: (rigId: string, model: RigModel, state: RigState) => string | null;
+  /**
+   * One sentence of the engine's dawn plan for this rig, added to the runway and falls-short
+   * warnings. Default: `alertDawnPlanLine` (./dawn-line); `null` leaves the plan out. Called
+   * only when one of those two episodes opens (never for rigs whose rules do not fire).
+   */
+  dawnPlanLine?: ((rigId: string, model: RigModel, state: RigState, nowMs: number) => string | null) | null;
 };
+
+const PLAN_RULES: readonly RuleKind[] = ["runway_low", "falls_short"];
+
+/** The dawn-plan sentence for a rig, computed at most once and only when asked for. */
+function lazyPlan(opts: EvaluateOptions, rigId: string, model: RigModel, state: RigState, nowMs: number): () => string | null {
+  let done = false;
+  let line: string | null = null;
+  return () => {
+    if (!done) {
+      done = true;
+      const f = opts.dawnPlanLine === undefined ? (_id: string, m: RigModel, st: RigState, t: number) => alertDawnPlanLine(m, st, t) : opts.dawnPlanLine;
+      line = f ? f(rigId, model, state, nowMs) : null;
+    }
+    return line;
+  };
+}
 
 export type EvaluationResult = { opened: string[]; cleared: string[]; deliveryIds: string[] };
 
@@ -83,7 +104,7 @@ export async function applyConditions(
   rig: { id: string; name: string; timeZone: string },
   conditions: Condition[],
   nowMs: number,
-  opts: EvaluateOptions & { dawnPlan?: string | null; openRules?: Set<string>; inTransaction?: boolean },
+  opts: EvaluateOptions & { dawnPlan?: () => string | null; openRules?: Set<string>; inTransaction?: boolean },
 ): Promise<EvaluationResult> {
   const result: EvaluationResult = { opened: [], cleared: [], deliveryIds: [] };
   const scoped = conditions.filter((c) => !opts.only || opts.only.includes(c.rule));
@@ -98,10 +119,12 @@ export async function applyConditions(
   const changes = scoped.filter((c) => c.active !== openRules.has(c.rule));
   if (!changes.length) return result;
 
+  // The engine's dawn plan only when a runway or falls-short alert opens (CPU outside the transaction).
+  const dawnPlan = opts.dawnPlan && changes.some((c) => c.active && PLAN_RULES.includes(c.rule)) ? opts.dawnPlan() : null;
   const write = async (tx: Tx | Db) => {
     for (const c of changes) {
       const text = alertText(
-        { rule: c.rule, rigName: rig.name, rigId: rig.id, detail: c.detail, timeZone: rig.timeZone, appUrl: opts.appUrl, dawnPlanLine: c.rule === "runway_low" || c.rule === "falls_short" ? opts.dawnPlan : null },
+        { rule: c.rule, rigName: rig.name, rigId: rig.id, detail: c.detail, timeZone: rig.timeZone, appUrl: opts.appUrl, dawnPlanLine: PLAN_RULES.includes(c.rule) ? dawnPlan : null },
         nowMs,
       );
       if (c.active) {
@@ -179,8 +202,9 @@ export async function evaluateRig(db: Db, rigId: string, nowMs: number, opts: Ev
     db.select({ rules: alertRules.rules }).from(alertRules).where(eq(alertRules.rigId, rigId)),
   ]);
   const rules = rulesWithDefaults(rulesRow[0]?.rules);
-  const { conditions } = evaluateConditions({ model, state, readings: recent.get(rigId) ?? [], rules, nowMs });
-  const dawnPlan = opts.dawnPlanLine?.(rigId, model, state) ?? null;
+  const readings = recent.get(rigId) ?? [];
+  const { conditions } = evaluateConditions({ model, state, readings, rules, nowMs });
+  const dawnPlan = lazyPlan(opts, rigId, model, withNewestSoc(state, readings).state, nowMs);
   return applyConditions(db, { ...rig, timeZone: model.timeZone }, conditions, nowMs, { ...opts, dawnPlan });
 }
 
@@ -225,11 +249,11 @@ export async function evaluateTimeBased(db: Db, nowMs: number, opts: EvaluateOpt
       const rules: RigRules = rulesBy.get(rig.id) ?? rulesWithDefaults(null);
       const state = stateBy.get(rig.id) ?? emptyRigState(rig.id);
       const openRules = openBy.get(rig.id) ?? new Set<string>();
-      const { conditions } = evaluateConditions({ model, state, readings: recent.get(rig.id) ?? [], rules, nowMs });
+      const readings = recent.get(rig.id) ?? [];
+      const { conditions } = evaluateConditions({ model, state, readings, rules, nowMs });
       if (!conditions.some((c) => only.includes(c.rule) && c.active !== openRules.has(c.rule))) continue;
-      changed.push((tx) =>
-        applyConditions(tx, { ...rig, timeZone: model.timeZone }, conditions, nowMs, { ...opts, only, openRules, inTransaction: true, dawnPlan: opts.dawnPlanLine?.(rig.id, model, state) ?? null }),
-      );
+      const dawnPlan = lazyPlan(opts, rig.id, model, withNewestSoc(state, readings).state, nowMs);
+      changed.push((tx) => applyConditions(tx, { ...rig, timeZone: model.timeZone }, conditions, nowMs, { ...opts, only, openRules, inTransaction: true, dawnPlan }));
     }
     if (changed.length) {
       await db.transaction(async (tx) => {
