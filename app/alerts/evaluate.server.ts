@@ -13,6 +13,7 @@ import type { Db } from "~/db/db.server";
 import { alertDeliveries, alertEpisodes, alertPreferences, alertRules, modelBranches, modelRevisions, pushSubscriptions, rigMembers, rigs, rigState, users } from "~/db/schema";
 import { validateModel, type RigModel } from "~/engine/model";
 import { getRigState, rowToState } from "~/repos/rig-state.server";
+import { withSwitchHistory } from "~/repos/switch-history.server";
 import { emptyRigState } from "~/schemas/rig-state";
 import { evaluateConditions, withNewestSoc, type Condition, type RecentReading } from "./conditions";
 import { alertDawnPlanLine } from "./dawn-line";
@@ -196,13 +197,15 @@ export async function evaluateRig(db: Db, rigId: string, nowMs: number, opts: Ev
   if (!rig) return empty;
   const model = (await loadAsBuilt(db, [rigId])).get(rigId);
   if (!model) return empty;
-  const [state, recent, rulesRow] = await Promise.all([
+  const [sharedState, recent, rulesRow] = await Promise.all([
     getRigState(db, rigId),
     loadRecentReadings(db, [rigId]),
     db.select({ rules: alertRules.rules }).from(alertRules).where(eq(alertRules.rigId, rigId)),
   ]);
   const rules = rulesWithDefaults(rulesRow[0]?.rules);
   const readings = recent.get(rigId) ?? [];
+  // The switches since the newest SoC, so the runway is carried through them.
+  const state = await withSwitchHistory(db, rigId, model, sharedState, nowMs, withNewestSoc(sharedState, readings).state);
   const { conditions } = evaluateConditions({ model, state, readings, rules, nowMs });
   const dawnPlan = lazyPlan(opts, rigId, model, withNewestSoc(state, readings).state, nowMs);
   return applyConditions(db, { ...rig, timeZone: model.timeZone }, conditions, nowMs, { ...opts, dawnPlan });
