@@ -49,7 +49,7 @@ describe("SoC carried forward through the switch history", () => {
     const model = cabinRig();
     const { rig } = await createRig(db, { name: "Juniper test cabin", ownerId: owner.id, document: model });
     const now = Date.now();
-    const write = (atMs: number, change: StateChange) => writeRigStateAndLog(db, { rigId: rig.id, userId: owner.id, write: { baseVersion: 0, change }, receivedAt: new Date(atMs) });
+    const write = (atMs: number, change: StateChange) => writeRigStateAndLog(db, { rigId: rig.id, userId: owner.id, write: { baseVersion: 0, change }, model, receivedAt: new Date(atMs) });
     await write(now - 3 * H, { kind: "switch", loads: [{ loadId: "heater", on: false }] });
     await write(now - 2 * H, { kind: "soc", soc: { socPct: 80, source: "entered", takenAt: new Date(now - 2 * H).toISOString() } });
     await write(now - 1 * H, { kind: "switch", loads: [{ loadId: "heater", on: true }] });
