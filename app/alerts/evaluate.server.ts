@@ -13,7 +13,7 @@ import type { Db } from "~/db/db.server";
 import { alertDeliveries, alertEpisodes, alertPreferences, alertRules, modelBranches, modelRevisions, pushSubscriptions, rigMembers, rigs, rigState, users } from "~/db/schema";
 import { validateModel, type RigModel } from "~/engine/model";
 import { getRigState, rowToState } from "~/repos/rig-state.server";
-import { withSwitchHistory } from "~/repos/switch-history.server";
+import { loadSwitchHistories, withSwitchHistory } from "~/repos/switch-history.server";
 import { emptyRigState } from "~/schemas/rig-state";
 import { evaluateConditions, withNewestSoc, type Condition, type RecentReading } from "./conditions";
 import { alertDawnPlanLine } from "./dawn-line";
@@ -242,6 +242,15 @@ export async function evaluateTimeBased(db: Db, nowMs: number, opts: EvaluateOpt
     const stateBy = new Map(stateRows.map((r) => [r.rigId, rowToState(r, new Map())]));
     const openBy = new Map<string, Set<string>>();
     for (const o of openRows) (openBy.get(o.rigId) ?? openBy.set(o.rigId, new Set()).get(o.rigId)!).add(o.rule);
+    // The switches since each rig's newest SoC (one query for the page), so its runway is carried through them.
+    const histories = await loadSwitchHistories(
+      db,
+      page.flatMap((rig) => {
+        const model = models.get(rig.id);
+        return model ? [{ rigId: rig.id, model, state: withNewestSoc(stateBy.get(rig.id) ?? emptyRigState(rig.id), recent.get(rig.id) ?? []).state }] : [];
+      }),
+      nowMs,
+    );
     const only = opts.only ?? TIME_BASED_RULES;
     // The engine's work first (CPU), then the rigs whose episodes change, in one transaction per page.
     const changed: Array<(tx: Tx) => Promise<EvaluationResult>> = [];
@@ -250,7 +259,9 @@ export async function evaluateTimeBased(db: Db, nowMs: number, opts: EvaluateOpt
       if (!model) continue;
       total.rigs++;
       const rules: RigRules = rulesBy.get(rig.id) ?? rulesWithDefaults(null);
-      const state = stateBy.get(rig.id) ?? emptyRigState(rig.id);
+      const shared = stateBy.get(rig.id) ?? emptyRigState(rig.id);
+      const history = histories.get(rig.id);
+      const state = history?.length ? { ...shared, history } : shared;
       const openRules = openBy.get(rig.id) ?? new Set<string>();
       const readings = recent.get(rig.id) ?? [];
       const { conditions } = evaluateConditions({ model, state, readings, rules, nowMs });

@@ -1,7 +1,12 @@
 // An SoC entered hours ago is carried forward through the switch history (switch_changes)
 // that the server hands over with the state (GET /api/rigs/:rigId/state), not through the
 // present switches alone (real PostgreSQL).
+import { and, eq } from "drizzle-orm";
 import { afterAll, describe, expect, test } from "vitest";
+import { evaluateRig } from "~/alerts/evaluate.server";
+import { rulesWithDefaults } from "~/alerts/rules";
+import { alertEpisodes } from "~/db/schema";
+import { saveRigRules } from "~/repos/alerts.server";
 import { graphFor, toEngineState } from "~/components/now/now-model";
 import { carrySocForward } from "~/engine/carry-forward";
 import type { RigModel } from "~/engine/model";
@@ -76,6 +81,27 @@ describe("SoC carried forward through the switch history", () => {
     const { history: _h, ...presentOnly } = state;
     void _h;
     expect(carried(presentOnly)).toBeCloseTo(58, 1);
+  });
+
+  test("the alert evaluation carries the SoC through the same history: runway 4.36 h, where the present state alone gave 3.45 h", async () => {
+    const owner = await makeUser(db, "Ada");
+    const model = cabinRig();
+    const { rig } = await createRig(db, { name: "Juniper test cabin", ownerId: owner.id, document: model });
+    const now = Date.now();
+    const write = (atMs: number, change: StateChange) => writeRigStateAndLog(db, { rigId: rig.id, userId: owner.id, write: { baseVersion: 0, change }, model, receivedAt: new Date(atMs) });
+    await write(now - 3 * H, { kind: "switch", loads: [{ loadId: "heater", on: false }] });
+    await write(now - 2 * H, { kind: "soc", soc: { socPct: 80, source: "entered", takenAt: new Date(now - 2 * H).toISOString() } });
+    await write(now - 1 * H, { kind: "switch", loads: [{ loadId: "heater", on: true }] });
+    const rules = rulesWithDefaults(null);
+    await saveRigRules(db, rig.id, { ...rules, runway_low: { enabled: true, belowH: 6 } }, owner.id);
+    const r = await evaluateRig(db, rig.id, now, { appUrl: "http://tilldawn.test", dawnPlanLine: null });
+    expect(r.opened.length).toBeGreaterThan(0);
+    const [episode] = await db.select().from(alertEpisodes).where(and(eq(alertEpisodes.rigId, rig.id), eq(alertEpisodes.rule, "runway_low")));
+    // Worked by hand: 68 % now (above), floor 20 %: 48 % × 1,280 Wh = 614.4 Wh at 140.8 W = 4.364 h.
+    // The present state alone: 80 % − 20 % = 768 Wh at 140.8 W = 5.455 h from the entry, 2 h gone: 3.455 h.
+    const runwayH = (episode!.detail as { runwayH: number }).runwayH;
+    expect(runwayH).toBeCloseTo(614.4 / 140.8, 1);
+    expect(Math.abs(runwayH - (768 / 140.8 - 2))).toBeGreaterThan(0.8);
   });
 
   test("without a change on record before the window, a load's first change in it is taken as a flip; a mode's change carries its id", () => {
