@@ -46,7 +46,7 @@ export type RigSnapshot = {
 const FRESH_MS = 60 * 60_000;
 
 /** The state with the newest SoC we know (a device or hand reading may be newer than the shared entry). */
-function withNewestSoc(state: RigState, readings: RecentReading[]): { state: RigState; socAtMs: number | null } {
+export function withNewestSoc(state: RigState, readings: RecentReading[]): { state: RigState; socAtMs: number | null } {
   const fromReading = readings.find((r) => r.socPct !== null);
   const entryMs = state.soc ? Date.parse(state.soc.takenAt) : null;
   if (fromReading && (entryMs === null || fromReading.takenAtMs > entryMs)) {
@@ -77,7 +77,11 @@ export function evaluateConditions(snap: RigSnapshot): { conditions: Condition[]
   const fresh = latest && nowMs - latest.takenAtMs <= FRESH_MS ? latest : null;
 
   // The projection from the moment of the newest SoC, so the runway runs down between readings.
-  const startMs = socAtMs !== null && socAtMs <= nowMs && nowMs - socAtMs < 48 * 3_600_000 ? socAtMs : nowMs;
+  // With a switch history in between (state.history), the projection starts now instead and the
+  // engine carries the SoC forward through what was on then (../engine/carry-forward).
+  const fromSoc = socAtMs !== null && socAtMs <= nowMs && nowMs - socAtMs < 48 * 3_600_000 ? socAtMs : nowMs;
+  const throughHistory = fromSoc < nowMs && (state.history ?? []).some((h) => Date.parse(h.at) > fromSoc && Date.parse(h.at) <= nowMs);
+  const startMs = throughHistory ? nowMs : fromSoc;
   const projection = state.soc ? project(model, state, startMs) : null;
   const pBank = projection ? projection.banks.find((b) => b.bankId === projection.primaryBankId) ?? null : null;
   const elapsedH = (nowMs - startMs) / 3_600_000;

@@ -13,8 +13,10 @@ import type { Db } from "~/db/db.server";
 import { alertDeliveries, alertEpisodes, alertPreferences, alertRules, modelBranches, modelRevisions, pushSubscriptions, rigMembers, rigs, rigState, users } from "~/db/schema";
 import { validateModel, type RigModel } from "~/engine/model";
 import { getRigState, rowToState } from "~/repos/rig-state.server";
+import { loadSwitchHistories, withSwitchHistory } from "~/repos/switch-history.server";
 import { emptyRigState } from "~/schemas/rig-state";
-import { evaluateConditions, type Condition, type RecentReading } from "./conditions";
+import { evaluateConditions, withNewestSoc, type Condition, type RecentReading } from "./conditions";
+import { alertDawnPlanLine } from "./dawn-line";
 import { mayNotify, rulesWithDefaults, TIME_BASED_RULES, type Preferences, type RigRules, type RuleKind } from "./rules";
 import { alertText } from "./text";
 import type { RigState } from "~/schemas/rig-state";
@@ -23,9 +25,29 @@ export type EvaluateOptions = {
   appUrl: string;
   /** Only these rules may open or clear episodes (the schedule passes the time-based ones). */
   only?: readonly RuleKind[];
-  /** Optional: one sentence of the engine's dawn plan for this rig, added to cutoff warnings. */
-  dawnPlanLine?: (rigId: string, model: RigModel, state: RigState) => string | null;
+  /**
+   * One sentence of the engine's dawn plan for this rig, added to the runway and falls-short
+   * warnings. Default: `alertDawnPlanLine` (./dawn-line); `null` leaves the plan out. Called
+   * only when one of those two episodes opens (never for rigs whose rules do not fire).
+   */
+  dawnPlanLine?: ((rigId: string, model: RigModel, state: RigState, nowMs: number) => string | null) | null;
 };
+
+const PLAN_RULES: readonly RuleKind[] = ["runway_low", "falls_short"];
+
+/** The dawn-plan sentence for a rig, computed at most once and only when asked for. */
+function lazyPlan(opts: EvaluateOptions, rigId: string, model: RigModel, state: RigState, nowMs: number): () => string | null {
+  let done = false;
+  let line: string | null = null;
+  return () => {
+    if (!done) {
+      done = true;
+      const f = opts.dawnPlanLine === undefined ? (_id: string, m: RigModel, st: RigState, t: number) => alertDawnPlanLine(m, st, t) : opts.dawnPlanLine;
+      line = f ? f(rigId, model, state, nowMs) : null;
+    }
+    return line;
+  };
+}
 
 export type EvaluationResult = { opened: string[]; cleared: string[]; deliveryIds: string[] };
 
@@ -83,7 +105,7 @@ export async function applyConditions(
   rig: { id: string; name: string; timeZone: string },
   conditions: Condition[],
   nowMs: number,
-  opts: EvaluateOptions & { dawnPlan?: string | null; openRules?: Set<string>; inTransaction?: boolean },
+  opts: EvaluateOptions & { dawnPlan?: () => string | null; openRules?: Set<string>; inTransaction?: boolean },
 ): Promise<EvaluationResult> {
   const result: EvaluationResult = { opened: [], cleared: [], deliveryIds: [] };
   const scoped = conditions.filter((c) => !opts.only || opts.only.includes(c.rule));
@@ -98,10 +120,12 @@ export async function applyConditions(
   const changes = scoped.filter((c) => c.active !== openRules.has(c.rule));
   if (!changes.length) return result;
 
+  // The engine's dawn plan only when a runway or falls-short alert opens (CPU outside the transaction).
+  const dawnPlan = opts.dawnPlan && changes.some((c) => c.active && PLAN_RULES.includes(c.rule)) ? opts.dawnPlan() : null;
   const write = async (tx: Tx | Db) => {
     for (const c of changes) {
       const text = alertText(
-        { rule: c.rule, rigName: rig.name, rigId: rig.id, detail: c.detail, timeZone: rig.timeZone, appUrl: opts.appUrl, dawnPlanLine: c.rule === "runway_low" || c.rule === "falls_short" ? opts.dawnPlan : null },
+        { rule: c.rule, rigName: rig.name, rigId: rig.id, detail: c.detail, timeZone: rig.timeZone, appUrl: opts.appUrl, dawnPlanLine: PLAN_RULES.includes(c.rule) ? dawnPlan : null },
         nowMs,
       );
       if (c.active) {
@@ -173,14 +197,17 @@ export async function evaluateRig(db: Db, rigId: string, nowMs: number, opts: Ev
   if (!rig) return empty;
   const model = (await loadAsBuilt(db, [rigId])).get(rigId);
   if (!model) return empty;
-  const [state, recent, rulesRow] = await Promise.all([
+  const [sharedState, recent, rulesRow] = await Promise.all([
     getRigState(db, rigId),
     loadRecentReadings(db, [rigId]),
     db.select({ rules: alertRules.rules }).from(alertRules).where(eq(alertRules.rigId, rigId)),
   ]);
   const rules = rulesWithDefaults(rulesRow[0]?.rules);
-  const { conditions } = evaluateConditions({ model, state, readings: recent.get(rigId) ?? [], rules, nowMs });
-  const dawnPlan = opts.dawnPlanLine?.(rigId, model, state) ?? null;
+  const readings = recent.get(rigId) ?? [];
+  // The switches since the newest SoC, so the runway is carried through them.
+  const state = await withSwitchHistory(db, rigId, model, sharedState, nowMs, withNewestSoc(sharedState, readings).state);
+  const { conditions } = evaluateConditions({ model, state, readings, rules, nowMs });
+  const dawnPlan = lazyPlan(opts, rigId, model, withNewestSoc(state, readings).state, nowMs);
   return applyConditions(db, { ...rig, timeZone: model.timeZone }, conditions, nowMs, { ...opts, dawnPlan });
 }
 
@@ -215,6 +242,15 @@ export async function evaluateTimeBased(db: Db, nowMs: number, opts: EvaluateOpt
     const stateBy = new Map(stateRows.map((r) => [r.rigId, rowToState(r, new Map())]));
     const openBy = new Map<string, Set<string>>();
     for (const o of openRows) (openBy.get(o.rigId) ?? openBy.set(o.rigId, new Set()).get(o.rigId)!).add(o.rule);
+    // The switches since each rig's newest SoC (one query for the page), so its runway is carried through them.
+    const histories = await loadSwitchHistories(
+      db,
+      page.flatMap((rig) => {
+        const model = models.get(rig.id);
+        return model ? [{ rigId: rig.id, model, state: withNewestSoc(stateBy.get(rig.id) ?? emptyRigState(rig.id), recent.get(rig.id) ?? []).state }] : [];
+      }),
+      nowMs,
+    );
     const only = opts.only ?? TIME_BASED_RULES;
     // The engine's work first (CPU), then the rigs whose episodes change, in one transaction per page.
     const changed: Array<(tx: Tx) => Promise<EvaluationResult>> = [];
@@ -223,13 +259,15 @@ export async function evaluateTimeBased(db: Db, nowMs: number, opts: EvaluateOpt
       if (!model) continue;
       total.rigs++;
       const rules: RigRules = rulesBy.get(rig.id) ?? rulesWithDefaults(null);
-      const state = stateBy.get(rig.id) ?? emptyRigState(rig.id);
+      const shared = stateBy.get(rig.id) ?? emptyRigState(rig.id);
+      const history = histories.get(rig.id);
+      const state = history?.length ? { ...shared, history } : shared;
       const openRules = openBy.get(rig.id) ?? new Set<string>();
-      const { conditions } = evaluateConditions({ model, state, readings: recent.get(rig.id) ?? [], rules, nowMs });
+      const readings = recent.get(rig.id) ?? [];
+      const { conditions } = evaluateConditions({ model, state, readings, rules, nowMs });
       if (!conditions.some((c) => only.includes(c.rule) && c.active !== openRules.has(c.rule))) continue;
-      changed.push((tx) =>
-        applyConditions(tx, { ...rig, timeZone: model.timeZone }, conditions, nowMs, { ...opts, only, openRules, inTransaction: true, dawnPlan: opts.dawnPlanLine?.(rig.id, model, state) ?? null }),
-      );
+      const dawnPlan = lazyPlan(opts, rig.id, model, withNewestSoc(state, readings).state, nowMs);
+      changed.push((tx) => applyConditions(tx, { ...rig, timeZone: model.timeZone }, conditions, nowMs, { ...opts, only, openRules, inTransaction: true, dawnPlan }));
     }
     if (changed.length) {
       await db.transaction(async (tx) => {

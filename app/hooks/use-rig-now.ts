@@ -127,7 +127,10 @@ export function useRigState(rigId: string, initial: RigStatePayload, model: RigM
       postJson<StateWriteResult>(`/api/rigs/${rigId}/state`, { baseVersion: v.baseVersion, clientTime: new Date().toISOString(), change: v.change }),
     onSuccess: (result) => {
       client.setQueryData<RigStatePayload>(rigKeys.state(rigId), (old) =>
-        old && old.state.version > result.state.version ? old : { ...(old ?? initial), state: result.state },
+        old && old.state.version > result.state.version
+          ? old
+          : // A write's answer has no switch history: keep the last one until the next refetch.
+            { ...(old ?? initial), state: result.state.history || !(old ?? initial).state.history ? result.state : { ...result.state, history: (old ?? initial).state.history } },
       );
       for (const lost of result.lostFields) {
         notify("warn", `${lost.byName ?? "Someone"} changed ${fieldLabel(lost.field, model)} just after you; their change stands.`);

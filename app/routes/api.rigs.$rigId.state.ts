@@ -8,6 +8,7 @@ import { apiError, badRequest, issuesOf, readJson } from "~/lib/http";
 import { writeRigStateAndLog } from "~/repos/logged-writes.server";
 import { getAsBuiltModel, requireAsBuiltModel } from "~/repos/models.server";
 import { getLatestReading, getRigState } from "~/repos/rig-state.server";
+import { withSwitchHistory } from "~/repos/switch-history.server";
 import { checkChangeAgainstModel, effectiveLoadsOn, stateWriteSchema } from "~/schemas/rig-state";
 import { requestEvaluation } from "~/alerts/queue.server";
 import { getEnv } from "~/env.server";
@@ -18,7 +19,9 @@ const noStore = { "cache-control": "private, no-store" };
 export async function loader({ request, params }: Route.LoaderArgs) {
   const db = getDb();
   const access = await requireRigRole(request, params.rigId, "guest", db);
-  const [state, latestReading, asBuilt] = await Promise.all([getRigState(db, access.rig.id), getLatestReading(db, access.rig.id), getAsBuiltModel(db, access.rig.id)]);
+  const [shared, latestReading, asBuilt] = await Promise.all([getRigState(db, access.rig.id), getLatestReading(db, access.rig.id), getAsBuiltModel(db, access.rig.id)]);
+  // The switches since the SoC entry (`state.history`), so the runway carries it through them.
+  const state = asBuilt ? await withSwitchHistory(db, access.rig.id, asBuilt.model, shared, Date.now()) : shared;
   // Every switch's position now: recorded ones, and the rest as the engine resolves them
   // (normal position, following the loads on, or off; a changeover with none is "unknown").
   const switchPositions = asBuilt

@@ -5,6 +5,7 @@ import { getDb } from "~/db/db.server";
 import { thrownMessage } from "~/lib/http";
 import { requireAsBuiltModel } from "~/repos/models.server";
 import { getLatestReading, getRigState } from "~/repos/rig-state.server";
+import { withSwitchHistory } from "~/repos/switch-history.server";
 import { NowScreen } from "~/components/now/now-screen";
 import { useModeEdit, useRigModel, useRigState, type RigModelPayload, type RigStatePayload } from "~/hooks/use-rig-now";
 
@@ -12,14 +13,17 @@ import { useModeEdit, useRigModel, useRigState, type RigModelPayload, type RigSt
 export async function loader({ request, params }: Route.LoaderArgs) {
   const db = getDb();
   const access = await requireRigRole(request, params.rigId, "guest", db);
-  const [asBuilt, state, latestReading] = await Promise.all([
+  const [asBuilt, sharedState, latestReading] = await Promise.all([
     requireAsBuiltModel(db, access.rig.id),
     getRigState(db, access.rig.id),
     getLatestReading(db, access.rig.id),
   ]);
+  const nowMs = Date.now();
+  // The switches since the SoC entry, so the runway carries an old SoC through them.
+  const state = await withSwitchHistory(db, access.rig.id, asBuilt.model, sharedState, nowMs);
   const model: RigModelPayload = { rigId: access.rig.id, name: access.rig.name, revision: asBuilt.revision, model: asBuilt.model, role: access.role };
   const shared: RigStatePayload = { state, latestReading, role: access.role };
-  return { model, shared, nowMs: Date.now() };
+  return { model, shared, nowMs };
 }
 
 /**

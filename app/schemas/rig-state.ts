@@ -75,6 +75,15 @@ export const rigStateSchema = z.object({
   /** Per field ("load:<id>", "switch:<id>", "mode", "soc", "place"): last change, server time. */
   fieldTimes: z.record(z.string(), fieldTimeSchema),
   updatedAt: isoTime.nullable(),
+  /**
+   * What was switched on from each change on, between the oldest SoC entry and when the server
+   * answered (app/repos/switch-history.server.ts), oldest first: the engine carries an old SoC
+   * forward through it. Absent when nothing changed in between; the phone keeps the last one.
+   */
+  history: z
+    .array(z.object({ at: isoTime, modeId: id.optional(), loadsOn: z.array(id).max(500).optional(), switchPositions: z.record(z.string(), z.string()).optional() }))
+    .max(200)
+    .optional(),
 });
 export type RigState = z.infer<typeof rigStateSchema>;
 

@@ -4,7 +4,11 @@ import path from "node:path";
 import { and, eq } from "drizzle-orm";
 import { afterAll, beforeAll, describe, expect, test } from "vitest";
 import { deliverOne, RetryLater, type DeliverDeps } from "~/alerts/deliver.server";
+import { withNewestSoc } from "~/alerts/conditions";
+import { alertDawnPlanLine } from "~/alerts/dawn-line";
 import { evaluateRig, evaluateTimeBased } from "~/alerts/evaluate.server";
+import { getAsBuiltModel } from "~/repos/models.server";
+import { getRigState } from "~/repos/rig-state.server";
 import { alertDeliveries, alertEpisodes, pushSubscriptions } from "~/db/schema";
 import type { Mail } from "~/mail/mailer.server";
 import { sendPush } from "~/push/send.server";
@@ -79,8 +83,43 @@ describe("push alerts", () => {
     expect(runway.body).toMatch(/about \d+ h( \d+ min)? left at the loads switched on now/);
     expect(runway.body).toContain("expected to reach its cutoff at about");
     expect(runway.url).toBe(`http://tilldawn.test/rigs/${j.rig.id}`);
+    // The engine's dawn plan, by default: the same sentence the evaluation computes from the
+    // rig's model and the newest SoC (20 % at night falls short), with Juniper's load names.
+    const model = (await getAsBuiltModel(db, j.rig.id))!.model;
+    const state = withNewestSoc(await getRigState(db, j.rig.id), [{ takenAtMs: NIGHT_MS - 60_000, socPct: 20, bankVoltageV: 12.9, currentA: -6 }]).state;
+    const line = alertDawnPlanLine(model, state, NIGHT_MS)!;
+    expect(line).toMatch(/^(To make it to the next charge|Switching off every load that is not essential)/);
+    expect(runway.body).toContain(line);
+    // At 20 % at night not even the essential loads alone make it: the line says so.
+    expect(line).toBe("Switching off every load that is not essential is not enough to reach the next charge: charge sooner if you can.");
+    expect(texts.find((t) => t.title === "Juniper: won't make the next charge")!.body).toContain(line);
     // Encrypted: the plain text is nowhere in the bytes on the wire.
     expect(Buffer.from(got[0]!.bodyBase64, "base64").toString("latin1")).not.toContain("Juniper");
+  });
+
+  test("the falls-short push names the loads of the dawn plan: at 30 % the inverter (and the AC loads behind it) off makes it", async () => {
+    const j = await makeJuniper(db);
+    const sub = await subscribe(j.rig.id, j.guestCookie, `t-${crypto.randomUUID()}`);
+    await savePreferences(db, j.rig.id, j.guest.id, { rules: ["falls_short"], quietStartMin: null, quietEndMin: null, timeZone: "America/Denver", push: true, email: false });
+    const device = await createDeviceToken(db, { rigId: j.rig.id, name: "Shunt reader", createdBy: j.owner.id });
+    expect((await post(j.rig.id, device.token, { takenAt: at(NIGHT_MS - 60_000), socPct: 30 })).status).toBe(200);
+    const r = await evaluateRig(db, j.rig.id, NIGHT_MS, opts);
+    await deliverAll(r.deliveryIds);
+    const id = new URL((await db.select().from(pushSubscriptions).where(eq(pushSubscriptions.id, sub.subscriptionId)))[0]!.endpoint).pathname.split("/").pop()!;
+    const texts = (await received(fake.url, id)).map((g) => decrypt(g, sub.keys) as { title: string; body: string });
+    const falls = texts.find((t) => t.title === "Juniper: won't make the next charge")!;
+    const model = (await getAsBuiltModel(db, j.rig.id))!.model;
+    const inverter = model.inverters[0]!;
+    expect(falls.body).toMatch(/^At the loads switched on now, Juniper's bank will run out before the sun at about/);
+    expect(falls.body).toContain(`To make it to the next charge, 1 % above the floor: switch off ${inverter.name}`);
+    expect(falls.body).toContain("(essential loads stay on;");
+    // Without the plan (dawnPlanLine: null) the same alert has no plan sentence.
+    const k = await makeJuniper(db, "Juniper two");
+    await post(k.rig.id, (await createDeviceToken(db, { rigId: k.rig.id, name: "Shunt reader", createdBy: k.owner.id })).token, { takenAt: at(NIGHT_MS - 60_000), socPct: 30 });
+    await savePreferences(db, k.rig.id, k.guest.id, { rules: ["falls_short"], quietStartMin: null, quietEndMin: null, timeZone: "America/Denver", push: false, email: true });
+    await evaluateRig(db, k.rig.id, NIGHT_MS, { ...opts, dawnPlanLine: null });
+    const [episode] = await db.select().from(alertEpisodes).where(and(eq(alertEpisodes.rigId, k.rig.id), eq(alertEpisodes.rule, "falls_short")));
+    expect(episode!.body).not.toContain("To make it");
   });
 
   test("one alert per episode, an all clear when it ends, and a new alert when it comes back", async () => {

@@ -69,6 +69,9 @@ export function toEngineState(model: RigModel, state: RigState, atMs: number, ex
     banks,
     loadsOn,
     switchPositions: state.positions,
+    // The switch history since the SoC entry (server-loaded; the phone keeps the last one), so
+    // an old SoC is carried through the switches of the hours in between.
+    ...(state.history?.length ? { history: state.history } : {}),
     ...(place ? { location: place } : {}),
     weatherFactor: weatherFactor(state.weather),
   };
