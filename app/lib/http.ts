@@ -22,13 +22,8 @@ export function notFound(message = "Not found") {
   return data({ message }, { status: 404 });
 }
 
-/** Zod issues as plain path/message pairs for API answers. */
-export function issuesOf(error: { issues: Array<{ path: PropertyKey[]; message: string }> }) {
-  return error.issues.map((issue) => ({
-    path: issue.path.map((p) => (typeof p === "number" ? p : String(p))),
-    message: issue.message,
-  }));
-}
+/** Zod issues as plain path/message pairs for API answers (declared in the engine). */
+export { issuesOf } from "~/engine/issues";
 
 /** Default body limits, in bytes. Routes that need more pass their own. */
 export const JSON_BODY_LIMIT = 256 * 1024;
