@@ -152,3 +152,25 @@ export async function readForm(request: Request, limit = FORM_BODY_LIMIT): Promi
   }
   return form;
 }
+
+/**
+ * The `intent` field of a small JSON or form body (4 KB at most), or null when there is none or
+ * the body cannot be read. For routes whose POST stands in for another method.
+ */
+export async function readIntentField(request: Request): Promise<string | null> {
+  const type = request.headers.get("content-type") ?? "";
+  try {
+    if (type.includes("application/json")) {
+      const read = await readJson(request, 4 * 1024);
+      const body = read.ok ? (read.body as { intent?: unknown } | null) : null;
+      return typeof body?.intent === "string" ? body.intent : null;
+    }
+    if (type.includes("form")) {
+      const value = (await readForm(request, 4 * 1024)).get("intent");
+      return typeof value === "string" ? value : null;
+    }
+  } catch {
+    return null;
+  }
+  return null;
+}
