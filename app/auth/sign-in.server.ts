@@ -292,3 +292,13 @@ function withRedirectTo(answer: Response, redirectTo: string): Response {
   headers.set("location", `/sign-in?${new URLSearchParams({ redirectTo })}`);
   return new Response(null, { status: answer.status, headers });
 }
+
+/** "Use another address": forget the code in progress (both cookies) and show the address step. */
+export async function restartSignIn(redirectTo: string) {
+  return redirect(`/sign-in?${new URLSearchParams({ redirectTo })}`, {
+    headers: [
+      ["Set-Cookie", `${CODE_COOKIE}=; Path=/; Max-Age=0; HttpOnly; SameSite=Lax`],
+      ["Set-Cookie", await clearSignInCookie()],
+    ],
+  });
+}
