@@ -79,6 +79,11 @@ export async function readBodyBytes(request: Request, limit: number): Promise<Ui
     }
     chunks.push(value);
   }
+  return joinChunks(chunks, total);
+}
+
+/** The chunks of a streamed body as one array (`total` is their summed length). */
+export function joinChunks(chunks: readonly Uint8Array[], total: number): Uint8Array {
   const out = new Uint8Array(total);
   let at = 0;
   for (const chunk of chunks) {
