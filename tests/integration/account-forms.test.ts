@@ -40,14 +40,15 @@ describe("The welcome form", () => {
 describe("The account page's forms", () => {
   test("preferences are saved, and an unticked night-mode box saves false", async () => {
     const { person, cookie } = await signedInNewcomer();
-    const form = { intent: "preferences", lengthUnit: "imperial", cableUnit: "awg", temperatureUnit: "f" };
+    // The account form always sends the clock choice (a radio group with the stored choice checked).
+    const form = { intent: "preferences", lengthUnit: "imperial", cableUnit: "awg", temperatureUnit: "f", clock: "12h" };
     const on = await callRoute(accountRoute.action, { path: "/account", cookie, form: { ...form, nightDefault: "on" } });
     expect(on.status).toBe(200);
     expect(on.body).toMatchObject({ intent: "preferences", ok: "Preferences saved." });
     const off = await callRoute(accountRoute.action, { path: "/account", cookie, form });
     expect(off.status).toBe(200);
     const [row] = await db.select().from(userPreferences).where(eq(userPreferences.userId, person.id));
-    expect(row).toMatchObject({ lengthUnit: "imperial", cableUnit: "awg", temperatureUnit: "f", nightDefault: false });
+    expect(row).toMatchObject({ lengthUnit: "imperial", cableUnit: "awg", temperatureUnit: "f", clock: "12h", nightDefault: false });
   });
 
   test("an unknown unit is answered 400 naming the field, and the stored preferences stay as they were", async () => {
