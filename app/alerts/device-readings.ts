@@ -6,6 +6,7 @@
  * a JSON Schema (served at GET /api/v1/device-readings.schema.json).
  */
 import { z } from "zod";
+import { issuesOf, type Issue } from "~/engine/issues";
 import { EARLIEST_READING_MS, FUTURE_SLACK_MS, READING_LIMITS } from "~/offline/protocol";
 
 export const MAX_DEVICE_BATCH = 5000;
@@ -55,13 +56,13 @@ export function voltageRange(nominalV: number) {
   return { min: 0, max: Math.round(nominalV * 1.4 * 10) / 10 };
 }
 
-export type ReadingIssue = { path: (string | number)[]; message: string };
+export type ReadingIssue = Issue;
 
 /** Checks one item; answers the reading or its issues (paths relative to the reading). */
 export function checkDeviceReading(item: unknown, nominalV: number): { ok: true; reading: DeviceReading } | { ok: false; issues: ReadingIssue[] } {
   const parsed = deviceReadingSchema.safeParse(item);
   if (!parsed.success) {
-    return { ok: false, issues: parsed.error.issues.map((i) => ({ path: i.path.map((p) => (typeof p === "number" ? p : String(p))), message: i.message })) };
+    return { ok: false, issues: issuesOf(parsed.error) };
   }
   const r = parsed.data;
   const range = voltageRange(nominalV);

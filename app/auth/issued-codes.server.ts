@@ -10,11 +10,12 @@
  */
 import { createDecipheriv, createHmac, timingSafeEqual } from "node:crypto";
 import { eq } from "drizzle-orm";
-import { createCookie } from "react-router";
+import type { createCookie } from "react-router";
 import type { Db } from "~/db/db.server";
 import { issuedSignInCodes } from "~/db/schema";
 import { getEnv } from "~/env.server";
 import { isUuid } from "~/lib/ids";
+import { signedCookie } from "./cookies.server";
 import { CODE_VALID_MINUTES, MAX_CODE_ATTEMPTS } from "./constants";
 
 export const SIGN_IN_COOKIE = "tilldawn_sign_in";
@@ -24,15 +25,7 @@ let cookie: ReturnType<typeof createCookie> | undefined;
 /** The cookie that names this browser's issued code (its row id; nothing else). */
 export function signInCookie() {
   if (!cookie) {
-    const env = getEnv();
-    cookie = createCookie(SIGN_IN_COOKIE, {
-      httpOnly: true,
-      sameSite: "lax",
-      path: "/",
-      maxAge: CODE_VALID_MINUTES * 60,
-      secure: env.APP_URL?.startsWith("https:") ?? false,
-      secrets: env.SESSION_SECRET.split(",").map((s) => s.trim()).filter(Boolean),
-    });
+    cookie = signedCookie(SIGN_IN_COOKIE, CODE_VALID_MINUTES * 60);
   }
   return cookie;
 }

@@ -5,11 +5,12 @@
  * TOUCH_AFTER_MS, and the cookie re-sent then by the root loader).
  */
 import { and, eq, gt, lt } from "drizzle-orm";
-import { createCookie, redirect } from "react-router";
+import { redirect, type createCookie } from "react-router";
 import { getDb, type Db } from "~/db/db.server";
 import { sessions, userPreferences, users } from "~/db/schema";
-import { appOrigin, getEnv } from "~/env.server";
+import { appOrigin } from "~/env.server";
 import { apiError } from "~/lib/http";
+import { signedCookie } from "./cookies.server";
 import { defaultPreferences, type Preferences } from "~/schemas/account";
 
 export const SESSION_COOKIE = "tilldawn_session";
@@ -22,15 +23,7 @@ let cookie: ReturnType<typeof createCookie> | undefined;
 /** The signed session cookie (httpOnly, SameSite=Lax, Secure when APP_URL is https). */
 export function sessionCookie() {
   if (!cookie) {
-    const env = getEnv();
-    cookie = createCookie(SESSION_COOKIE, {
-      httpOnly: true,
-      sameSite: "lax",
-      path: "/",
-      secure: env.APP_URL?.startsWith("https:") ?? false,
-      secrets: env.SESSION_SECRET.split(",").map((s) => s.trim()),
-      maxAge: SESSION_DAYS * 24 * 60 * 60,
-    });
+    cookie = signedCookie(SESSION_COOKIE, SESSION_DAYS * 24 * 60 * 60);
   }
   return cookie;
 }

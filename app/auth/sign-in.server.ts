@@ -15,6 +15,7 @@ import { TOTPStrategy } from "remix-auth-totp";
 import { z } from "zod";
 import { getDb, type Db } from "~/db/db.server";
 import { users } from "~/db/schema";
+import { emailSchema } from "~/schemas/account";
 import { appOrigin, getEnv } from "~/env.server";
 import { clientAddress } from "~/lib/rate-limit.server";
 import { MailError, sendMail } from "~/mail/mailer.server";
@@ -43,14 +44,6 @@ const ISSUED_FIELD = "issuedCodeId";
 const approved = new Map<string, string>();
 const APPROVAL_HEADER = "x-tilldawn-sign-in-approval";
 const CODE_COOKIE = "_totp";
-
-export const emailSchema = z
-  .string({ error: "Enter your e-mail address." })
-  .trim()
-  .min(1, "Enter your e-mail address.")
-  .max(254, "That address is too long.")
-  .pipe(z.email({ error: "That does not look like an e-mail address. Check it and try again." }))
-  .transform((s) => s.toLowerCase());
 
 export const codeSchema = z
   .string({ error: "Enter the code from the e-mail." })
@@ -298,4 +291,14 @@ function withRedirectTo(answer: Response, redirectTo: string): Response {
   const headers = new Headers(answer.headers);
   headers.set("location", `/sign-in?${new URLSearchParams({ redirectTo })}`);
   return new Response(null, { status: answer.status, headers });
+}
+
+/** "Use another address": forget the code in progress (both cookies) and show the address step. */
+export async function restartSignIn(redirectTo: string) {
+  return redirect(`/sign-in?${new URLSearchParams({ redirectTo })}`, {
+    headers: [
+      ["Set-Cookie", `${CODE_COOKIE}=; Path=/; Max-Age=0; HttpOnly; SameSite=Lax`],
+      ["Set-Cookie", await clearSignInCookie()],
+    ],
+  });
 }

@@ -9,6 +9,7 @@ import { autonomy, type Autonomy } from "./autonomy";
 import { buildCircuitGraph, type SwitchStep } from "./circuit-graph";
 import type { How } from "./explain";
 import type { Budget } from "./draw";
+import { issuesOf } from "./issues";
 import { migrateModel, rigModelSchema, validateModel, type ModelIssue, type RigModel } from "./model";
 import { runProjection, type BankProjection } from "./projection";
 import { currentStateSchema, type CurrentState } from "./state";
@@ -84,10 +85,6 @@ export interface ProjectionResult {
 
 export type ParseResult<T> = { ok: true; value: T } | { ok: false; issues: ModelIssue[] };
 
-function zodIssues(err: z.ZodError): ModelIssue[] {
-  return err.issues.map((i) => ({ path: i.path.map((p) => (typeof p === "symbol" ? String(p) : p)), message: i.message }));
-}
-
 /** Schema, referential and state checks. Never throws. */
 export function parseProjectionRequest(body: unknown): ParseResult<ProjectionRequest> {
   try {
@@ -96,7 +93,7 @@ export function parseProjectionRequest(body: unknown): ParseResult<ProjectionReq
       ? { ...(body as Record<string, unknown>), model: migrateModel((body as Record<string, unknown>).model) }
       : body;
     const parsed = projectionRequestSchema.safeParse(input);
-    if (!parsed.success) return { ok: false, issues: zodIssues(parsed.error) };
+    if (!parsed.success) return { ok: false, issues: issuesOf(parsed.error) };
     const v = validateModel(parsed.data.model);
     if (!v.ok) return { ok: false, issues: v.issues.map((i) => ({ path: ["model", ...i.path], message: i.message })) };
     const issues = checkState(v.model, parsed.data.state);

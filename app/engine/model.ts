@@ -23,6 +23,7 @@
  * Schema as is; semantic and referential checks live in `validateModel`.
  */
 import { z } from "zod";
+import { issuesOf, type Issue } from "./issues";
 
 export const SCHEMA_VERSION = 2 as const;
 
@@ -534,10 +535,7 @@ function isRecord(v: unknown): v is Record<string, unknown> {
 
 /* --------------------------------------------------------- validation */
 
-export interface ModelIssue {
-  path: (string | number)[];
-  message: string;
-}
+export type ModelIssue = Issue;
 export type ValidateResult =
   | { ok: true; model: RigModel }
   | { ok: false; issues: ModelIssue[] };
@@ -553,10 +551,7 @@ export function validateModel(doc: unknown): ValidateResult {
     if (!parsed.success) {
       return {
         ok: false,
-        issues: parsed.error.issues.map((i) => ({
-          path: i.path.map((p) => (typeof p === "symbol" ? String(p) : p)),
-          message: i.message,
-        })),
+        issues: issuesOf(parsed.error),
       };
     }
     const issues = checkReferences(parsed.data);

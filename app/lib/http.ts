@@ -22,13 +22,8 @@ export function notFound(message = "Not found") {
   return data({ message }, { status: 404 });
 }
 
-/** Zod issues as plain path/message pairs for API answers. */
-export function issuesOf(error: { issues: Array<{ path: PropertyKey[]; message: string }> }) {
-  return error.issues.map((issue) => ({
-    path: issue.path.map((p) => (typeof p === "number" ? p : String(p))),
-    message: issue.message,
-  }));
-}
+/** Zod issues as plain path/message pairs for API answers (declared in the engine). */
+export { issuesOf } from "~/engine/issues";
 
 /** Default body limits, in bytes. Routes that need more pass their own. */
 export const JSON_BODY_LIMIT = 256 * 1024;
@@ -84,6 +79,11 @@ export async function readBodyBytes(request: Request, limit: number): Promise<Ui
     }
     chunks.push(value);
   }
+  return joinChunks(chunks, total);
+}
+
+/** The chunks of a streamed body as one array (`total` is their summed length). */
+export function joinChunks(chunks: readonly Uint8Array[], total: number): Uint8Array {
   const out = new Uint8Array(total);
   let at = 0;
   for (const chunk of chunks) {
@@ -156,4 +156,26 @@ export async function readForm(request: Request, limit = FORM_BODY_LIMIT): Promi
     }
   }
   return form;
+}
+
+/**
+ * The `intent` field of a small JSON or form body (4 KB at most), or null when there is none or
+ * the body cannot be read. For routes whose POST stands in for another method.
+ */
+export async function readIntentField(request: Request): Promise<string | null> {
+  const type = request.headers.get("content-type") ?? "";
+  try {
+    if (type.includes("application/json")) {
+      const read = await readJson(request, 4 * 1024);
+      const body = read.ok ? (read.body as { intent?: unknown } | null) : null;
+      return typeof body?.intent === "string" ? body.intent : null;
+    }
+    if (type.includes("form")) {
+      const value = (await readForm(request, 4 * 1024)).get("intent");
+      return typeof value === "string" ? value : null;
+    }
+  } catch {
+    return null;
+  }
+  return null;
 }

@@ -6,6 +6,7 @@
  */
 import { fileTypeFromBuffer } from "file-type";
 import sharp from "sharp";
+import { joinChunks } from "~/lib/http";
 import { PHOTO_MAX_BYTES, THUMB_MAX_PX, type PhotoMime } from "./limits";
 
 export class PhotoInputError extends Error {
@@ -55,13 +56,7 @@ export async function readBodyWithLimit(request: Request, limit = PHOTO_MAX_BYTE
     throw new PhotoInputError(400, "upload_interrupted", "The upload stopped before the whole picture arrived. Nothing was kept.");
   }
   if (total === 0) throw new PhotoInputError(400, "photo_missing", "The picture is empty.");
-  const out = new Uint8Array(total);
-  let at = 0;
-  for (const c of chunks) {
-    out.set(c, at);
-    at += c.byteLength;
-  }
-  return out;
+  return joinChunks(chunks, total);
 }
 
 export type DetectedType = { mime: PhotoMime; ext: "jpg" | "png" | "webp" };

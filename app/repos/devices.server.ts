@@ -10,7 +10,10 @@ import { createHash, randomBytes } from "node:crypto";
 import { and, desc, eq, isNull, sql } from "drizzle-orm";
 import type { Db } from "~/db/db.server";
 import { deviceTokens } from "~/db/schema";
-import type { DeviceReading } from "~/alerts/device-readings";
+import { checkDeviceReading, type DeviceReading, type ReadingIssue } from "~/alerts/device-readings";
+import { primaryBank } from "~/components/now/now-model";
+import { bankNominalV } from "~/engine/battery";
+import { getAsBuiltModel } from "./models.server";
 import { lockRigLog } from "./sync.server";
 
 export const TOKEN_PREFIX = "tdd_";
@@ -108,4 +111,58 @@ export async function storeDeviceReadings(db: Db, device: Device, list: DeviceRe
     return new Set(newIds);
   });
   return { ids, stored };
+}
+
+export type DeviceReadingResult = { index: number; status: "stored" | "duplicate" | "refused"; readingId?: string; issues?: ReadingIssue[] };
+
+/**
+ * A device's posted readings, each checked alone against the rig's bank (refused ones listed with
+ * their index and paths under `readings.N` in a batch; repeats of one `takenAt` are duplicates),
+ * the good ones stored. A single refused reading refuses the request.
+ */
+export async function ingestDeviceReadings(
+  db: Db,
+  device: Device,
+  items: unknown[],
+  batch: boolean,
+  receivedAt: Date,
+): Promise<
+  | { ok: true; results: DeviceReadingResult[]; stored: number }
+  | { ok: false; code: "model_unreadable" }
+  | { ok: false; code: "invalid_reading"; issues: ReadingIssue[] }
+> {
+  const asBuilt = await getAsBuiltModel(db, device.rigId);
+  if (!asBuilt) return { ok: false, code: "model_unreadable" };
+  const nominalV = bankNominalV(primaryBank(asBuilt.model));
+
+  const results: DeviceReadingResult[] = [];
+  const good: DeviceReading[] = [];
+  const goodIndex: number[] = [];
+  const seen = new Set<number>();
+  items.forEach((item, index) => {
+    const r = checkDeviceReading(item, nominalV);
+    if (!r.ok) {
+      results[index] = { index, status: "refused", issues: r.issues.map((i) => ({ ...i, path: batch ? ["readings", index, ...i.path] : i.path })) };
+      return;
+    }
+    const t = Date.parse(r.reading.takenAt);
+    if (seen.has(t)) {
+      results[index] = { index, status: "duplicate" };
+      return;
+    }
+    seen.add(t);
+    good.push(r.reading);
+    goodIndex.push(index);
+  });
+
+  if (!batch && results[0]?.status === "refused") {
+    return { ok: false, code: "invalid_reading", issues: results[0].issues! };
+  }
+
+  const { ids, stored } = await storeDeviceReadings(db, device, good, receivedAt);
+  goodIndex.forEach((index, k) => {
+    const id = ids[k]!;
+    results[index] = { index, status: stored.has(id) ? "stored" : "duplicate", readingId: id };
+  });
+  return { ok: true, results, stored: stored.size };
 }

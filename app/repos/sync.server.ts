@@ -27,6 +27,7 @@ import {
   type SyncRequest,
   type SyncResponse,
 } from "~/schemas/sync";
+import { getAsBuiltModel } from "./models.server";
 import { BranchNotInRigError, createDraft, getAsBuilt, saveRevision, StaleRevisionError, type RigRole } from "./rigs.server";
 import { writeRigState } from "./rig-state.server";
 import { checkChangeAgainstModel } from "~/schemas/rig-state";
@@ -132,9 +133,7 @@ export async function applySync(db: Db, actor: SyncActor, request: SyncRequest, 
         receivedAt,
         model: async () => {
           if (model === undefined) {
-            const asBuilt = await getAsBuilt(tx as unknown as Db, request.rigId);
-            const checked = asBuilt ? validateModel(asBuilt.document) : null;
-            model = checked?.ok ? checked.model : null;
+            model = (await getAsBuiltModel(tx as unknown as Db, request.rigId))?.model ?? null;
           }
           return model;
         },
@@ -346,7 +345,7 @@ async function applyOne(ctx: Ctx, item: Parsed): Promise<ChangeResult> {
       const payload = item.payload as ChangePayload<"model.save">;
       const checked = validateModel(payload.document);
       if (!checked.ok) {
-        return refused(item.id, "invalid", "The model has problems; open it to fix them.", checked.issues.map((i) => ({ path: i.path, message: i.message })));
+        return refused(item.id, "invalid", "The model has problems; open it to fix them.", checked.issues);
       }
       const db = tx as unknown as Db;
       const branchId = payload.branchId ?? (await getAsBuilt(db, rigId))?.branchId;

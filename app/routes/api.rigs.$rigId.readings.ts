@@ -1,23 +1,11 @@
 import type { Route } from "./+types/api.rigs.$rigId.readings";
-import { z } from "zod";
 import { requireRigRole } from "~/auth/guards.server";
 import { getDb } from "~/db/db.server";
 import { apiError, badRequest, issuesOf } from "~/lib/http";
-import { queryTime } from "~/schemas/readings";
+import { readingsQuerySchema } from "~/schemas/readings";
 import { listReadings, readingSeries, toWire } from "~/repos/readings.server";
 
 const DAY_MS = 86_400_000;
-
-const querySchema = z.object({
-  from: queryTime("from").optional(),
-  to: queryTime("to").optional(),
-  /** "series": chart points (downsampled on the server for long ranges); "list": rows. */
-  view: z.enum(["list", "series"]).default("list"),
-  points: z.coerce.number().int().min(10).max(2000).default(600),
-  limit: z.coerce.number().int().min(1).max(500).default(50),
-  beforeAt: queryTime("beforeAt").optional(),
-  beforeId: z.uuid().optional(),
-});
 
 /**
  * GET /api/rigs/:rigId/readings — the logbook for any member.
@@ -27,7 +15,7 @@ const querySchema = z.object({
 export async function loader({ request, params }: Route.LoaderArgs) {
   const db = getDb();
   const access = await requireRigRole(request, params.rigId, "guest", db);
-  const parsed = querySchema.safeParse(Object.fromEntries(new URL(request.url).searchParams));
+  const parsed = readingsQuerySchema.safeParse(Object.fromEntries(new URL(request.url).searchParams));
   if (!parsed.success) return badRequest("invalid_query", "The query is not valid.", issuesOf(parsed.error));
   const q = parsed.data;
   const headers = { "cache-control": "private, no-store" };

@@ -2,7 +2,7 @@ import type { Route } from "./+types/api.rigs.photos.$photoId";
 import { protectedAction } from "~/auth/csrf.server";
 import { requireRigRole } from "~/auth/guards.server";
 import { getDb } from "~/db/db.server";
-import { apiError, readForm, readJson } from "~/lib/http";
+import { apiError, readIntentField } from "~/lib/http";
 import { isUuid } from "~/lib/ids";
 import { mayDeletePhoto } from "~/photos/permissions";
 import { removePhoto } from "~/photos/upload.server";
@@ -46,7 +46,7 @@ export const action = protectedAction(async ({ request, params }: Route.ActionAr
   const db = getDb();
   const access = await requireRigRole(request, params.rigId, "crew", db);
   if (method === "POST") {
-    const intent = await intentOf(request);
+    const intent = await readIntentField(request);
     if (intent !== "delete") return apiError(400, "invalid_intent", "Send intent=delete to delete this photo.");
   }
   if (!isUuid(params.photoId)) return noSuchPhoto();
@@ -65,21 +65,3 @@ export const action = protectedAction(async ({ request, params }: Route.ActionAr
   if (!removed) return noSuchPhoto();
   return Response.json({ deleted: row.id }, { headers: { "cache-control": "private, no-store" } });
 });
-
-async function intentOf(request: Request): Promise<string | null> {
-  const type = request.headers.get("content-type") ?? "";
-  try {
-    if (type.includes("application/json")) {
-      const read = await readJson(request, 4 * 1024);
-      const body = read.ok ? (read.body as { intent?: unknown } | null) : null;
-      return typeof body?.intent === "string" ? body.intent : null;
-    }
-    if (type.includes("form")) {
-      const value = (await readForm(request, 4 * 1024)).get("intent");
-      return typeof value === "string" ? value : null;
-    }
-  } catch {
-    return null;
-  }
-  return null;
-}

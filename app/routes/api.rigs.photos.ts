@@ -1,37 +1,17 @@
-import { z } from "zod";
 import type { Route } from "./+types/api.rigs.photos";
 import { protectedAction } from "~/auth/csrf.server";
 import { requireRigRole } from "~/auth/guards.server";
 import { getDb } from "~/db/db.server";
 import { apiError, issuesOf } from "~/lib/http";
 import { startPhotoSweeper } from "~/photos/cleanup.server";
-import { CAPTION_MAX, PLACE_MAX } from "~/photos/limits";
 import { mayAddPhoto, mayKeepLocation } from "~/photos/permissions";
 import { PhotoInputError, readBodyWithLimit } from "~/photos/process.server";
 import { storePhoto } from "~/photos/upload.server";
-import { assertPhotoTarget, listPhotos, PhotoTargetError, type PhotoTarget } from "~/repos/photos.server";
+import { assertPhotoTarget, listPhotos, PhotoTargetError } from "~/repos/photos.server";
+import { keepsLocation, photoListQuery, photoUploadQuery, uploadTargetOf } from "~/schemas/photos";
 import { getPhotoStore } from "~/storage/photo-store.server";
 
 const noStore = { "cache-control": "private, no-store" };
-const partId = z.string().trim().min(1).max(100);
-
-const listQuery = z.object({
-  partId: partId.optional(),
-  place: z.string().trim().min(1).max(PLACE_MAX).optional(),
-  readingId: z.uuid().optional(),
-});
-
-const uploadQuery = z
-  .object({
-    partId: partId.optional(),
-    place: z.string().trim().max(PLACE_MAX).optional(),
-    readingId: z.uuid().optional(),
-    caption: z.string().trim().max(CAPTION_MAX).default(""),
-    keepLocation: z.enum(["0", "1", "true", "false"]).optional(),
-  })
-  .refine((q) => !(q.readingId && (q.partId || q.place)), { message: "A photo goes on a reading or on a part, not both.", path: ["readingId"] })
-  .refine((q) => Boolean(q.readingId || q.partId || q.place), { message: "Say what the photo shows: partId, place or readingId.", path: ["partId"] });
-
 function queryOf(request: Request) {
   return Object.fromEntries(new URL(request.url).searchParams);
 }
@@ -40,7 +20,7 @@ function queryOf(request: Request) {
 export async function loader({ request, params }: Route.LoaderArgs) {
   const db = getDb();
   const access = await requireRigRole(request, params.rigId, "guest", db);
-  const parsed = listQuery.safeParse(queryOf(request));
+  const parsed = photoListQuery.safeParse(queryOf(request));
   if (!parsed.success) return apiError(400, "invalid_query", "The photo filter does not have the expected shape.", issuesOf(parsed.error));
   const photos = await listPhotos(db, access.rig.id, parsed.data);
   const store = getPhotoStore();
@@ -57,16 +37,14 @@ export const action = protectedAction(async ({ request, params }: Route.ActionAr
   if (request.method !== "POST") return apiError(405, "method_not_allowed", "Use POST.", undefined, { allow: "GET, POST" });
   const db = getDb();
   const access = await requireRigRole(request, params.rigId, "crew", db);
-  const parsed = uploadQuery.safeParse(queryOf(request));
+  const parsed = photoUploadQuery.safeParse(queryOf(request));
   if (!parsed.success) return apiError(400, "invalid_target", parsed.error.issues[0]?.message ?? "Bad photo target.", issuesOf(parsed.error));
   const q = parsed.data;
-  const target: PhotoTarget = q.readingId
-    ? { kind: "reading", readingId: q.readingId }
-    : { kind: "part", partId: q.partId ?? null, place: q.place ?? "" };
+  const target = uploadTargetOf(q);
   if (!mayAddPhoto(access.role, target.kind)) {
     return apiError(403, "forbidden", "Only the rig's owners add photos to the model; crew can add photos to logbook readings.");
   }
-  const keepLocation = q.keepLocation === "1" || q.keepLocation === "true";
+  const keepLocation = keepsLocation(q);
   if (keepLocation && !mayKeepLocation(access.role)) {
     return apiError(403, "forbidden", "Only the rig's owners can keep a photo's location.");
   }

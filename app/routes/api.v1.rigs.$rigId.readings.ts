@@ -1,15 +1,11 @@
 import type { Route } from "./+types/api.v1.rigs.$rigId.readings";
-import { checkDeviceReading, deviceEnvelopeSchema, type DeviceReading, type ReadingIssue } from "~/alerts/device-readings";
+import { deviceEnvelopeSchema } from "~/alerts/device-readings";
 import { requestEvaluation } from "~/alerts/queue.server";
 import { getDb } from "~/db/db.server";
-import { bankNominalV } from "~/engine/battery";
-import { validateModel } from "~/engine/model";
-import { primaryBank } from "~/components/now/now-model";
 import { getEnv } from "~/env.server";
 import { apiError, issuesOf, readJson } from "~/lib/http";
 import { clientAddress, createRateLimiter } from "~/lib/rate-limit.server";
-import { findDevice, storeDeviceReadings } from "~/repos/devices.server";
-import { getAsBuilt } from "~/repos/rigs.server";
+import { findDevice, ingestDeviceReadings } from "~/repos/devices.server";
 
 /** Per token: 120 requests a minute (a reading every half second, or batches). */
 const perToken = createRateLimiter({ limit: 120, windowMs: 60_000 });
@@ -54,42 +50,13 @@ export async function action({ request, params }: Route.ActionArgs) {
   const batch = "readings" in envelope.data && Array.isArray(envelope.data.readings);
   const items: unknown[] = batch ? (envelope.data as { readings: unknown[] }).readings : [envelope.data];
 
-  const asBuilt = await getAsBuilt(db, device.rigId);
-  const checked = asBuilt ? validateModel(asBuilt.document) : null;
-  if (!checked?.ok) return apiError(409, "model_unreadable", "This rig's model could not be read, so readings cannot be checked against its bank.");
-  const nominalV = bankNominalV(primaryBank(checked.model));
-
-  const results: Array<{ index: number; status: "stored" | "duplicate" | "refused"; readingId?: string; issues?: ReadingIssue[] }> = [];
-  const good: DeviceReading[] = [];
-  const goodIndex: number[] = [];
-  const seen = new Set<number>();
-  items.forEach((item, index) => {
-    const r = checkDeviceReading(item, nominalV);
-    if (!r.ok) {
-      results[index] = { index, status: "refused", issues: r.issues.map((i) => ({ ...i, path: batch ? ["readings", index, ...i.path] : i.path })) };
-      return;
-    }
-    const t = Date.parse(r.reading.takenAt);
-    if (seen.has(t)) {
-      results[index] = { index, status: "duplicate" };
-      return;
-    }
-    seen.add(t);
-    good.push(r.reading);
-    goodIndex.push(index);
-  });
-
-  if (!batch && results[0]?.status === "refused") {
-    const issues = results[0].issues!;
-    return apiError(400, "invalid_reading", issues[0]!.message, issues);
+  const ingest = await ingestDeviceReadings(db, device, items, batch, receivedAt);
+  if (!ingest.ok) {
+    if (ingest.code === "model_unreadable") return apiError(409, "model_unreadable", "This rig's model could not be read, so readings cannot be checked against its bank.");
+    return apiError(400, "invalid_reading", ingest.issues[0]!.message, ingest.issues);
   }
-
-  const { ids, stored } = await storeDeviceReadings(db, device, good, receivedAt);
-  goodIndex.forEach((index, k) => {
-    const id = ids[k]!;
-    results[index] = { index, status: stored.has(id) ? "stored" : "duplicate", readingId: id };
-  });
-  if (stored.size) await requestEvaluation(getEnv().DATABASE_URL, device.rigId);
+  const { results } = ingest;
+  if (ingest.stored) await requestEvaluation(getEnv().DATABASE_URL, device.rigId);
 
   const count = (s: string) => results.filter((r) => r.status === s).length;
   return Response.json(

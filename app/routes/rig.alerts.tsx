@@ -1,105 +1,15 @@
-import { data, Form, useActionData, useNavigation } from "react-router";
+import { Form, useActionData, useNavigation } from "react-router";
 import type { Route } from "./+types/rig.alerts";
-import { preferencesSchema, RULE_KINDS, RULE_NAMES, rigRulesSchema, DEFAULT_PREFERENCES, CUTOFF_RULE, type RuleKind } from "~/alerts/rules";
+import { RULE_KINDS, RULE_NAMES, DEFAULT_PREFERENCES, CUTOFF_RULE } from "~/alerts/rules";
 import { protectedAction } from "~/auth/csrf.server";
-import { requireRigRole } from "~/auth/guards.server";
 import { WarnMe } from "~/components/alerts/warn-me";
 import { Button, Card, Field, Notice } from "~/components/ui/form";
-import { getDb } from "~/db/db.server";
-import { isUuid } from "~/lib/ids";
-import { loadVapidKeys } from "~/push/vapid.server";
-import { getPreferences, getRigRules, listAlertLog, savePreferences, saveRigRules, stopAlerts } from "~/repos/alerts.server";
-import { createDeviceToken, listDeviceTokens, revokeDeviceToken } from "~/repos/devices.server";
-import { getAsBuilt } from "~/repos/rigs.server";
-import { validateModel } from "~/engine/model";
-import { readForm } from "~/lib/http";
+import { alertsAction, alertsLoader, type AlertsAnswer } from "./rig.alerts.server";
 
 /** GET /rigs/:rigId/alerts — "Warn me", one's own alert choices, the alert log (every member); rules and device tokens (owners). */
-export async function loader({ request, params }: Route.LoaderArgs) {
-  const { user, role, rig } = await requireRigRole(request, params.rigId, "guest");
-  const db = getDb();
-  const [prefs, rules, log, devices, asBuilt] = await Promise.all([
-    getPreferences(db, rig.id, user.id),
-    getRigRules(db, rig.id),
-    listAlertLog(db, rig.id, 30),
-    role === "owner" ? listDeviceTokens(db, rig.id) : Promise.resolve([]),
-    role === "owner" ? getAsBuilt(db, rig.id) : Promise.resolve(null),
-  ]);
-  const checked = asBuilt ? validateModel(asBuilt.document) : null;
-  const modes = checked?.ok ? checked.model.modes.map((m) => ({ id: m.id, name: m.name })) : [];
-  return {
-    rig,
-    role,
-    publicKey: loadVapidKeys().publicKey,
-    prefs: prefs ? { ...prefs, unsubscribeToken: undefined } : null,
-    rules,
-    modes,
-    log,
-    devices: devices.map((d) => ({ ...d, createdAt: d.createdAt.toISOString(), lastUsedAt: d.lastUsedAt?.toISOString() ?? null, revokedAt: d.revokedAt?.toISOString() ?? null })),
-  };
-}
+export const loader = alertsLoader;
 
-type Answer = { intent: string; ok?: string; error?: string; token?: { name: string; value: string } };
-
-const hhmm = (v: FormDataEntryValue | null): number | null => {
-  const m = /^(\d{1,2}):(\d{2})$/.exec(String(v ?? ""));
-  return m ? Number(m[1]) * 60 + Number(m[2]) : null;
-};
-
-export const action = protectedAction(async ({ request, params }: Route.ActionArgs) => {
-  const form = await readForm(request);
-  const intent = String(form.get("intent") ?? "");
-  const ownerIntents = ["rules", "device-create", "device-revoke"];
-  const { user, rig } = await requireRigRole(request, params.rigId, ownerIntents.includes(intent) ? "owner" : "guest");
-  const db = getDb();
-  const fail = (message: string) => data<Answer>({ intent, error: message }, { status: 400 });
-  switch (intent) {
-    case "preferences": {
-      const parsed = preferencesSchema.safeParse({
-        rules: form.getAll("rule").map(String),
-        quietStartMin: hhmm(form.get("quietStart")),
-        quietEndMin: hhmm(form.get("quietEnd")),
-        timeZone: String(form.get("timeZone") || "UTC"),
-        push: form.get("push") === "on",
-        email: form.get("email") === "on",
-      });
-      if (!parsed.success) return fail(parsed.error.issues[0]?.message ?? "Check the form.");
-      await savePreferences(db, rig.id, user.id, parsed.data);
-      return data<Answer>({ intent, ok: "Your alert choices are saved." });
-    }
-    case "stop":
-      await stopAlerts(db, rig.id, user.id);
-      return data<Answer>({ intent, ok: "You will get no more alerts for this rig." });
-    case "rules": {
-      const n = (k: string) => (form.get(k) === "" || form.get(k) === null ? null : Number(form.get(k)));
-      const on = (k: RuleKind) => form.get(`${k}.enabled`) === "on";
-      const parsed = rigRulesSchema.safeParse({
-        runway_low: { enabled: on("runway_low"), belowH: n("runway_low.belowH") ?? 3 },
-        soc_low: { enabled: on("soc_low"), floorPct: n("soc_low.floorPct") },
-        voltage_low: { enabled: on("voltage_low"), belowV: n("voltage_low.belowV") },
-        no_reading: { enabled: on("no_reading"), afterH: n("no_reading.afterH") ?? 6, parkedModeIds: form.getAll("no_reading.parkedModeIds").map(String) },
-        charging_stopped: { enabled: on("charging_stopped") },
-        falls_short: { enabled: on("falls_short") },
-      });
-      if (!parsed.success) return fail(`${parsed.error.issues[0]?.path.join(" ")}: ${parsed.error.issues[0]?.message}`);
-      await saveRigRules(db, rig.id, parsed.data, user.id);
-      return data<Answer>({ intent, ok: "The rig's alert rules are saved." });
-    }
-    case "device-create": {
-      const name = String(form.get("name") ?? "").trim();
-      if (name.length < 1 || name.length > 60) return fail("Give the device a name of 1 to 60 characters.");
-      const created = await createDeviceToken(db, { rigId: rig.id, name, createdBy: user.id });
-      return data<Answer>({ intent, ok: `Token for ${created.name} created.`, token: { name: created.name, value: created.token } });
-    }
-    case "device-revoke": {
-      const id = String(form.get("id") ?? "");
-      if (!isUuid(id) || !(await revokeDeviceToken(db, rig.id, id))) return fail("That token is not live on this rig.");
-      return data<Answer>({ intent, ok: "The token is revoked: the device can no longer post." });
-    }
-    default:
-      return fail("Unknown action.");
-  }
-});
+export const action = protectedAction(alertsAction);
 
 export function meta({ data: d }: Route.MetaArgs) {
   return [{ title: `Alerts · ${d?.rig.name ?? "Rig"} · Tilldawn` }];
@@ -111,7 +21,7 @@ const statusWords: Record<string, string> = { pending: "waiting", sending: "send
 
 export default function RigAlerts({ loaderData }: Route.ComponentProps) {
   const { rig, role, publicKey, prefs, rules, modes, log, devices } = loaderData;
-  const answer = useActionData<typeof action>() as Answer | undefined;
+  const answer = useActionData<typeof action>() as AlertsAnswer | undefined;
   const busy = useNavigation().state !== "idle";
   const p = prefs ?? DEFAULT_PREFERENCES;
   const result = (intent: string) =>

@@ -111,11 +111,7 @@ export default function ImportReadings({ loaderData }: Route.ComponentProps) {
   if (guest) {
     return (
       <div className="space-y-5">
-        <p>
-          <Link to={`/rigs/${rigId}/log`} className="inline-flex min-h-11 items-center font-bold text-night-300 underline">
-            ‹ Logbook of {name}
-          </Link>
-        </p>
+        <BackToLog rigId={rigId} name={name} />
         <h1 className="text-3xl font-bold">Importing is for the rig's crew</h1>
         <p className="text-night-200">
           You follow {name} as a guest, so you can read its logbook but not add to it. You can still read every reading in the logbook, or take
@@ -135,11 +131,7 @@ export default function ImportReadings({ loaderData }: Route.ComponentProps) {
 
   return (
     <div className="space-y-5">
-      <p>
-        <Link to={`/rigs/${rigId}/log`} className="inline-flex min-h-11 items-center font-bold text-night-300 underline">
-          ‹ Logbook of {name}
-        </Link>
-      </p>
+      <BackToLog rigId={rigId} name={name} />
       <h1 className="text-3xl font-bold">Import readings from a CSV file</h1>
       <p className="text-night-200">
         Any battery monitor's CSV export with a header row works: choose which column is which, check the units, look at the preview, then import.
@@ -268,5 +260,15 @@ export default function ImportReadings({ loaderData }: Route.ComponentProps) {
         </p>
       ) : null}
     </div>
+  );
+}
+
+function BackToLog({ rigId, name }: { rigId: string; name: string }) {
+  return (
+    <p>
+      <Link to={`/rigs/${rigId}/log`} className="inline-flex min-h-11 items-center font-bold text-night-300 underline">
+        ‹ Logbook of {name}
+      </Link>
+    </p>
   );
 }

@@ -2,9 +2,8 @@ import { Form, Link, redirect, useActionData, useNavigation } from "react-router
 import type { Route } from "./+types/sign-in";
 import { protectedAction } from "~/auth/csrf.server";
 import { getUser, safeRedirect } from "~/auth/session.server";
-import { readCodeCookie, requestCode, verifyCode, type SignInFormResult } from "~/auth/sign-in.server";
+import { readCodeCookie, requestCode, restartSignIn, verifyCode, type SignInFormResult } from "~/auth/sign-in.server";
 import { CODE_VALID_MINUTES } from "~/auth/constants";
-import { clearSignInCookie } from "~/auth/issued-codes.server";
 import { Button, Field, Notice } from "~/components/ui/form";
 import { apiError, readForm } from "~/lib/http";
 
@@ -32,12 +31,7 @@ export const action = protectedAction(async ({ request, context }: Route.ActionA
     case "verify":
       return verifyCode(request, { code: String(form.get("code") ?? ""), redirectTo });
     case "restart":
-      return redirect(`/sign-in?${new URLSearchParams({ redirectTo })}`, {
-        headers: [
-          ["Set-Cookie", "_totp=; Path=/; Max-Age=0; HttpOnly; SameSite=Lax"],
-          ["Set-Cookie", await clearSignInCookie()],
-        ],
-      });
+      return restartSignIn(redirectTo);
     default:
       throw apiError(400, "unknown_intent", "Unknown sign-in step: send intent send, resend, verify or restart.");
   }

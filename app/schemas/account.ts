@@ -35,9 +35,8 @@ export const defaultPreferences: Preferences = {
 };
 
 /**
- * An e-mail address as people type it (trimmed, lower-cased). Used by the invitation form;
- * `app/auth/sign-in.server.ts` still declares the same rule for signing in (to become an import
- * of this one when the sign-in form moves here).
+ * An e-mail address as people type it (trimmed, lower-cased). Used by the invitation form and
+ * by signing in (`app/auth/sign-in.server.ts`).
  */
 export const emailSchema = z
   .string({ error: "Enter your e-mail address." })

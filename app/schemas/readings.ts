@@ -111,3 +111,15 @@ export const wireReadingSchema = z.object({
   deletedAt: z.string().nullable(),
 });
 export type WireReading = z.infer<typeof wireReadingSchema>;
+
+/** GET /api/rigs/:rigId/readings: a range as chart points (`series`) or a page of rows (`list`). */
+export const readingsQuerySchema = z.object({
+  from: queryTime("from").optional(),
+  to: queryTime("to").optional(),
+  /** "series": chart points (downsampled on the server for long ranges); "list": rows. */
+  view: z.enum(["list", "series"]).default("list"),
+  points: z.coerce.number().int().min(10).max(2000).default(600),
+  limit: z.coerce.number().int().min(1).max(500).default(50),
+  beforeAt: queryTime("beforeAt").optional(),
+  beforeId: z.uuid().optional(),
+});

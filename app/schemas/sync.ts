@@ -6,7 +6,7 @@
  * See DEVELOPERS.md, "Offline and sync".
  */
 import { z } from "zod";
-import { rigRoles } from "~/auth/roles";
+import { roleSchema } from "~/auth/roles";
 import { stateWriteSchema } from "~/schemas/rig-state";
 import {
   EARLIEST_READING_MS,
@@ -112,7 +112,7 @@ export type PulledChange = z.infer<typeof pulledChangeSchema>;
 /** What POST /api/sync answers; the phone parses it with this schema before using it. */
 export const syncResponseSchema = z.object({
   /** Who the server took the request from, and their role on the rig (the phone keeps these). */
-  me: z.object({ userId: z.string(), role: z.enum(rigRoles) }).optional(),
+  me: z.object({ userId: z.string(), role: roleSchema }).optional(),
   results: z.array(changeResultSchema),
   changes: z.array(pulledChangeSchema),
   cursor: z.number().int().min(0),

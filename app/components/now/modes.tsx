@@ -102,10 +102,27 @@ function errorText(e: unknown): string {
   return e instanceof Error ? e.message : "The change could not be saved.";
 }
 
-function SaveModeForm({ model, mode, loadsOn, onSubmit, onDone }: { model: RigModel; mode: RigModel["modes"][number]; loadsOn: string[]; onSubmit: (name: string) => Promise<unknown>; onDone: () => void }) {
-  const [name, setName] = useState("");
+/** A form's save: busy while it runs, then done, or its error shown with nothing lost. */
+function useSaving() {
   const [error, setError] = useState<string | null>(null);
   const [busy, setBusy] = useState(false);
+  async function save(run: () => Promise<unknown>, onDone: () => void) {
+    setBusy(true);
+    try {
+      await run();
+      onDone();
+    } catch (err) {
+      setError(errorText(err));
+    } finally {
+      setBusy(false);
+    }
+  }
+  return { error, setError, busy, save };
+}
+
+function SaveModeForm({ model, mode, loadsOn, onSubmit, onDone }: { model: RigModel; mode: RigModel["modes"][number]; loadsOn: string[]; onSubmit: (name: string) => Promise<unknown>; onDone: () => void }) {
+  const [name, setName] = useState("");
+  const { error, setError, busy, save } = useSaving();
   const id = useId();
   return (
     <form
@@ -115,15 +132,7 @@ function SaveModeForm({ model, mode, loadsOn, onSubmit, onDone }: { model: RigMo
         e.preventDefault();
         if (!name.trim()) return setError("Give the mode a name.");
         if (model.modes.some((m) => m.name.toLowerCase() === name.trim().toLowerCase())) return setError("A mode with this name exists already.");
-        setBusy(true);
-        try {
-          await onSubmit(name.trim());
-          onDone();
-        } catch (err) {
-          setError(errorText(err));
-        } finally {
-          setBusy(false);
-        }
+        await save(() => onSubmit(name.trim()), onDone);
       }}
     >
       <p className="text-night-200">
@@ -149,8 +158,7 @@ function HoursForm({ model, mode, onSubmit, onDone }: { model: RigModel; mode: R
   const [hours, setHours] = useState<Record<string, string>>(() =>
     Object.fromEntries(model.loads.map((l) => [l.id, String(mode.loads.find((x) => x.loadId === l.id)?.hoursPerDay ?? 0)])),
   );
-  const [error, setError] = useState<string | null>(null);
-  const [busy, setBusy] = useState(false);
+  const { error, setError, busy, save } = useSaving();
   return (
     <form
       className="space-y-3"
@@ -165,15 +173,7 @@ function HoursForm({ model, mode, onSubmit, onDone }: { model: RigModel; mode: R
           if (v !== was) loads.push({ loadId: l.id, hoursPerDay: v });
         }
         if (!loads.length) return onDone();
-        setBusy(true);
-        try {
-          await onSubmit(loads);
-          onDone();
-        } catch (err) {
-          setError(errorText(err));
-        } finally {
-          setBusy(false);
-        }
+        await save(() => onSubmit(loads), onDone);
       }}
     >
       <ul className="space-y-2">

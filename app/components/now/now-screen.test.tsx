@@ -5,7 +5,8 @@ import { MemoryRouter } from "react-router";
 import { juniperModel } from "../../../tests/fixtures/juniper";
 import { oneLoadRig } from "~/engine/test-rigs";
 import { emptyRigState, type RigState } from "~/schemas/rig-state";
-import { NowScreen, type NowRole } from "./now-screen";
+import type { Role } from "~/auth/roles";
+import { NowScreen } from "./now-screen";
 import { computeNow, loadCost } from "./now-model";
 import { formatDelta, formatDuration } from "./format";
 
@@ -16,7 +17,7 @@ function stateWith(socPct: number, extra: Partial<RigState> = {}): RigState {
   return { ...emptyRigState("rig-1"), soc: { socPct, source: "entered", takenAt: new Date(at - 10 * 60_000).toISOString() }, ...extra };
 }
 
-function render(state: RigState, role: NowRole = "crew") {
+function render(state: RigState, role: Role = "crew") {
   return renderToString(
     <MemoryRouter>
       <NowScreen

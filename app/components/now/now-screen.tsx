@@ -5,6 +5,7 @@
  */
 import { lazy, Suspense, useEffect, useLayoutEffect, useMemo, useRef, useState } from "react";
 import { Link } from "react-router";
+import type { Role } from "~/auth/roles";
 import type { RigModel } from "~/engine/model";
 import { Button } from "~/components/ui/button";
 import { Sheet } from "~/components/ui/sheet";
@@ -22,7 +23,6 @@ import { formatA, formatAgo, formatClock, formatDuration, formatPct, formatW } f
 
 const ProjectionChart = lazy(() => import("./projection-chart"));
 
-export type NowRole = "owner" | "crew" | "guest";
 
 export interface NowScreenProps {
   rigId: string;
@@ -30,7 +30,7 @@ export interface NowScreenProps {
   model: RigModel;
   revision: number;
   state: RigState;
-  role: NowRole;
+  role: Role;
   latestReading: LatestReading | null;
   /** Server time when the page was rendered (keeps server and first client render equal). */
   initialNowMs: number;
@@ -372,7 +372,7 @@ function verdictSentence(now: NowResult, tz: string): string {
   return `Reaches the floor ${formatDuration(Math.abs(td.marginH ?? 0))} before ${what} at ${when}.`;
 }
 
-function SyncBadge({ status, role }: { status: "idle" | "saving" | "offline" | "error"; role: NowRole }) {
+function SyncBadge({ status, role }: { status: "idle" | "saving" | "offline" | "error"; role: Role }) {
   const text = role === "guest" ? "Read-only (guest)" : { idle: "Saved", saving: "Saving…", offline: "Offline", error: "Not synced" }[status];
   return (
     <p role="status" className={cn("rounded-full px-3 py-1 text-sm font-bold", status === "error" || status === "offline" ? "bg-night-800 text-ember-300" : "bg-night-800 text-night-200")} data-testid="sync-status">
