@@ -67,10 +67,15 @@ describe("Now screen text from the engine", () => {
     expect(t).toContain(`Reaches the floor ${formatDuration(Math.abs(now.bank.tillDawn.marginH ?? 0))} before sunshine`);
   });
 
-  test("with no SoC entered, the screen says a full bank is assumed", () => {
+  test("with no SoC entered, the screen asks for it and shows the runway only as a range up to the full-bank figure", () => {
     const t = text(render(emptyRigState("rig-1")));
-    expect(t).toContain("No SoC entered yet: a full bank is assumed.");
-    expect(t).toContain("100 %");
+    // The upper end is the runway from a full bank entered at this very minute.
+    const full = computeNow({ model: juniperModel, state: { ...emptyRigState("rig-1"), soc: { socPct: 100, source: "entered", takenAt: new Date(at).toISOString() } }, atMs: at });
+    expect(t).toContain("No SoC entered yet.");
+    expect(t).toContain("How full is the bank?");
+    expect(t).toContain(`0 to ${formatDuration(full.bank.runwayH, full.projection.horizonH)}`);
+    expect(t).not.toContain("Makes it till dawn");
+    expect(t).not.toContain("a full bank is assumed");
   });
 
   test("switching a load off lengthens the runway by what the engine says it costs", () => {

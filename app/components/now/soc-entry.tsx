@@ -8,6 +8,7 @@ import type { LatestReading, SocEntry } from "~/schemas/rig-state";
 import { formatAgo, formatPct, fromLocalInput, toLocalInput } from "./format";
 
 type Tab = "soc" | "voltage" | "logbook";
+export type SocEntryTab = Tab;
 
 const confidenceWords = { high: "high confidence", medium: "medium confidence", low: "low confidence" } as const;
 
@@ -19,6 +20,7 @@ export function SocEntryForm({
   latestReading,
   onSave,
   onCancel,
+  initialTab = "soc",
 }: {
   bank: Bank;
   timeZone: string;
@@ -26,8 +28,10 @@ export function SocEntryForm({
   latestReading: LatestReading | null;
   onSave: (soc: SocEntry) => void;
   onCancel: () => void;
+  /** Which way of giving the SoC opens first. */
+  initialTab?: SocEntryTab;
 }) {
-  const [tab, setTab] = useState<Tab>("soc");
+  const [tab, setTab] = useState<Tab>(initialTab);
   const [socText, setSocText] = useState("");
   const [voltText, setVoltText] = useState("");
   const [takenText, setTakenText] = useState(() => toLocalInput(nowMs, timeZone));
