@@ -7,18 +7,18 @@ import type { Page } from "playwright-core";
 import { baseUrl, phoneContext } from "./browser";
 import { signIn } from "./auth";
 import { setUpJuniper } from "./juniper";
-import { rigState, users } from "~/db/schema";
+import { rigState, userPreferences, users } from "~/db/schema";
 import { createRig, getAsBuilt } from "~/repos/rigs.server";
 import type { RigModel } from "~/engine/model";
 
 const juniper = setUpJuniper();
 
 /** A new rig with Juniper's model, owned by Ada; optionally with a SoC entered `ageH` hours ago. */
-async function copyOfJuniper(name: string, soc?: { pct: number; ageH: number }): Promise<string> {
+async function copyOfJuniper(name: string, soc?: { pct: number; ageH: number }, ownerId?: string): Promise<string> {
   const { db } = juniper;
   const [ada] = await db.select().from(users).where(eq(users.email, "ada@juniper.example"));
   const asBuilt = await getAsBuilt(db, juniper.rigId);
-  const { rig } = await createRig(db, { name, ownerId: ada!.id, document: asBuilt!.document as RigModel });
+  const { rig } = await createRig(db, { name, ownerId: ownerId ?? ada!.id, document: asBuilt!.document as RigModel });
   if (soc) {
     await db.insert(rigState).values({
       rigId: rig.id,
@@ -92,5 +92,30 @@ describe("Now screen with no SoC known", () => {
     expect(await page.getByTestId("runway").textContent()).not.toMatch(/^0 to/);
     expect(await page.getByRole("meter", { name: "State of charge" }).count()).toBe(1);
     await page.context().close();
+  });
+});
+
+describe("Now screen names the charging window", () => {
+  test("the verdict names when the sun is strong enough, in the rig's zone on the person's 12-hour clock, and the band's end says full", async () => {
+    const context = await phoneContext(juniper.browser);
+    const userId = await signIn(context, `twelve-${crypto.randomUUID().slice(0, 8)}@juniper.example`);
+    await juniper.db.insert(userPreferences).values({ userId, clock: "12h" });
+    const rigId = await copyOfJuniper(`Juniper clock ${crypto.randomUUID().slice(0, 8)}`, { pct: 90, ageH: 0.5 }, userId);
+    const page = await context.newPage();
+    await page.goto(`${baseUrl()}/rigs/${rigId}`);
+    await page.getByTestId("runway").waitFor();
+    await page.locator("[data-testid=projection-chart] canvas").waitFor();
+
+    const verdict = (await page.getByTestId("verdict").textContent())!;
+    expect(verdict).not.toMatch(/dawn/i);
+    // Juniper charges from the sun only: unless it charges right now, the window is the sun out-giving the loads.
+    if (!/^Charging now/.test(verdict)) {
+      expect(verdict).toMatch(/^(Makes it till|Falls short before) the sun is strong enough, about (\w{3} )?\d{1,2}:\d\d\u202f(AM|PM)$/);
+    }
+    // The band's right end is labelled as a level, not a time of day.
+    const band = page.getByRole("meter", { name: "State of charge" });
+    expect(await band.textContent()).not.toMatch(/dawn/i);
+    expect(await band.getByTestId("band-full").textContent()).toBe("100 % full");
+    await context.close();
   });
 });

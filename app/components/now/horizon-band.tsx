@@ -2,7 +2,7 @@ import { cn } from "~/lib/cn";
 
 /**
  * State of charge as a horizon: a wide band whose left end is the night edge; stored energy
- * fills from there toward dawn, warm amber brightening as it rises. The usable floor is marked
+ * fills from there toward the right-hand end, which is a full bank (labelled "100 % full"), warm amber brightening as it rises. The usable floor is marked
  * where the night begins to win.
  */
 export function HorizonBand({ socPct, stopSocPct, lowConfidence, className }: { socPct: number | null; stopSocPct: number; lowConfidence?: boolean; className?: string }) {
@@ -53,8 +53,8 @@ export function HorizonBand({ socPct, stopSocPct, lowConfidence, className }: { 
       <span aria-hidden="true" className="absolute bottom-1 text-[11px] font-bold text-ember-300" style={{ left: `calc(${stop}% + 4px)` }}>
         floor
       </span>
-      <span aria-hidden="true" className="absolute right-2 top-1 text-[11px] font-bold uppercase tracking-widest text-night-300">
-        dawn
+      <span aria-hidden="true" data-testid="band-full" className="absolute right-2 top-1 text-[11px] font-bold text-night-300">
+        100 % full
       </span>
     </div>
   );

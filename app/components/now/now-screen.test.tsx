@@ -8,6 +8,7 @@ import { emptyRigState, type RigState } from "~/schemas/rig-state";
 import { NowScreen, type NowRole } from "./now-screen";
 import { computeNow, loadCost } from "./now-model";
 import { formatDelta, formatDuration } from "./format";
+import { formatDayTime } from "~/lib/datetime";
 
 // An October evening at Juniper's home, 19:30 local (UTC−6).
 const at = Date.parse("2026-10-15T19:30:00-06:00");
@@ -55,16 +56,20 @@ describe("Now screen text from the engine", () => {
     const now = computeNow({ model: juniperModel, state: stateWith(80), atMs: at });
     expect(now.bank.tillDawn.reaches).toBe(true);
     const t = text(render(stateWith(80)));
-    expect(t).toContain("Makes it till dawn");
-    expect(t).toMatch(/Reaches sunshine at \w{3} \d\d:\d\d with \d+ % above the floor and .+ to spare\./);
+    // The window is named for what it is, at the engine's window time, in the rig's zone (24-hour clock by default).
+    const when = formatDayTime(now.bank.tillDawn.nextWindowMs!, { timeZone: juniperModel.timeZone, clock: "24h" });
+    expect(t).toContain(`Makes it till the sun is strong enough, about ${when}`);
+    expect(t).not.toContain("till dawn");
+    expect(t).toMatch(/At about \w{3} \d\d:\d\d, when the sun is strong enough, the bank is still with \d+ % above the floor and .+ to spare\./);
   });
 
   test("a nearly empty bank says it falls short, and by how long", () => {
     const now = computeNow({ model: juniperModel, state: stateWith(20), atMs: at });
     expect(now.bank.tillDawn.reaches).toBe(false);
     const t = text(render(stateWith(20)));
-    expect(t).toContain("Falls short of the next charge");
-    expect(t).toContain(`Reaches the floor ${formatDuration(Math.abs(now.bank.tillDawn.marginH ?? 0))} before sunshine`);
+    const when = formatDayTime(now.bank.tillDawn.nextWindowMs!, { timeZone: juniperModel.timeZone, clock: "24h" });
+    expect(t).toContain(`Falls short before the sun is strong enough, about ${when}`);
+    expect(t).toContain(`The bank reaches its floor ${formatDuration(Math.abs(now.bank.tillDawn.marginH ?? 0))} before the sun is strong enough, about ${when}.`);
   });
 
   test("with no SoC entered, the screen asks for it and shows the runway only as a range up to the full-bank figure", () => {
@@ -74,7 +79,7 @@ describe("Now screen text from the engine", () => {
     expect(t).toContain("No SoC entered yet.");
     expect(t).toContain("How full is the bank?");
     expect(t).toContain(`0 to ${formatDuration(full.bank.runwayH, full.projection.horizonH)}`);
-    expect(t).not.toContain("Makes it till dawn");
+    expect(t).not.toContain("Makes it till");
     expect(t).not.toContain("a full bank is assumed");
   });
 

@@ -20,6 +20,7 @@ import { SocEntryForm, type SocEntryTab } from "./soc-entry";
 import { primaryBank } from "~/engine/primary-bank";
 import { DawnPlanCard } from "./dawn-plan";
 import { formatA, formatAgo, formatClock, formatDuration, formatPct, formatW } from "./format";
+import { dayKey, formatDayTime, formatTime, type Clock, type TimeSettings } from "~/lib/datetime";
 
 const ProjectionChart = lazy(() => import("./projection-chart"));
 
@@ -39,6 +40,8 @@ export interface NowScreenProps {
   onModeEdit?: (body: ModeEditBody) => Promise<unknown>;
   status?: "idle" | "saving" | "offline" | "error";
   notices?: Array<{ id: number; tone: "info" | "warn" | "error"; text: string }>;
+  /** The person's 12- or 24-hour clock (times are in the rig's time zone). */
+  clock?: Clock;
 }
 
 /** A SoC older than this is flagged as stale; with nothing newer, the runway is not shown as a fact. */
@@ -74,7 +77,23 @@ function planningState(state: RigState, knowledge: SocKnowledge, atMs: number): 
   return { ...state, soc };
 }
 
-const windowWords = { sun: "sunshine", drive: "a drive", shore: "shore power", generator: "the generator", charger: "a charger" } as const;
+const windowWords = { sun: "sun strong enough", drive: "a drive", shore: "shore power", generator: "the generator", charger: "a charger" } as const;
+/** The next charging window named for what it is: the sun counts from when it out-gives the loads, not from sunrise. */
+const windowNames = { sun: "the sun is strong enough", drive: "the next drive", shore: "shore power", generator: "the generator runs", charger: "a charger" } as const;
+
+/** "11:58" later today, "Fri 11:58" on another day: in the rig's time zone, on the person's clock. */
+function clockWords(ms: number, atMs: number, time: TimeSettings): string {
+  return dayKey(ms, time.timeZone) === dayKey(atMs, time.timeZone) ? formatTime(ms, time) : formatDayTime(ms, time);
+}
+
+/** The verdict's headline: "Makes it till the sun is strong enough, about 11:58". */
+export function verdictHeadline(now: NowResult, atMs: number, time: TimeSettings): string {
+  const td = now.bank.tillDawn;
+  if (td.chargingNow) return "Charging now";
+  if (td.nextWindowMs === null) return td.reaches ? `Stays above the floor for ${now.projection.horizonH} h` : `No charge in ${now.projection.horizonH} h`;
+  const window = `${windowNames[td.nextWindowKind ?? "sun"]}, about ${clockWords(td.nextWindowMs, atMs, time)}`;
+  return td.reaches ? `Makes it till ${window}` : `Falls short before ${window}`;
+}
 const sourceWords = { entered: "entered by hand", resting_voltage: "estimated from a resting voltage", logbook: "from the logbook" } as const;
 
 export function NowScreen(props: NowScreenProps) {
@@ -134,6 +153,7 @@ function NowBody({
   setPinned,
   canWrite,
   knowledge,
+  clock = "24h",
 }: NowScreenProps & { knowledge: SocKnowledge; now: NowResult; atMs: number; pinned: number | null; setPinned: (ms: number | null) => void; canWrite: boolean }) {
   const [socOpen, setSocOpen] = useState(false);
   const [socTab, setSocTab] = useState<SocEntryTab>("soc");
@@ -149,6 +169,7 @@ function NowBody({
   const td = bank.tillDawn;
   const horizonH = now.projection.horizonH;
   const tz = model.timeZone;
+  const time = useMemo((): TimeSettings => ({ timeZone: tz, clock }), [tz, clock]);
 
   // Toggle latency: marked when the new runway is in the DOM (bench: scripts/bench-now.ts).
   useLayoutEffect(() => {
@@ -181,11 +202,11 @@ function NowBody({
     source: "Tilldawn's projection; Peukert's law for discharge; clear-sky sun scaled by the weather choice.",
   });
   const explainVerdict = (): Explanation => ({
-    title: "Till dawn",
+    title: "Till the next charge",
     value: unknown ? (td.reaches ? "Not known" : "Falls short") : td.reaches ? "Makes it" : "Falls short",
     plain: unknown
-      ? `${unknownVerdictSentence(now, tz)} The state of charge is not known; these figures start from a full bank, the best case.`
-      : td.nextWindowMs === null ? td.summary : `${verdictSentence(now, tz)} ${td.summary}`,
+      ? `${unknownVerdictSentence(now, atMs, time)} The state of charge is not known; these figures start from a full bank, the best case.`
+      : td.nextWindowMs === null ? td.summary : `${verdictSentence(now, atMs, time)} ${td.summary}`,
     how: td.how,
   });
   const explainNet = (): Explanation => ({
@@ -305,18 +326,18 @@ function NowBody({
           <div className={cn("rounded-2xl border-2 border-dashed p-3", td.reaches ? "border-night-500" : "border-ember-500")}>
             <Explainable explanation={explainVerdict} className="block w-full no-underline">
               <span className={cn("block text-xl font-bold", td.reaches ? "text-night-100" : "text-ember-500")} data-testid="verdict">
-                {td.reaches ? "Till dawn: not known until the SoC is given" : "Falls short of the next charge, even from a full bank"}
+                {td.reaches ? "Till the next charge: not known until the SoC is given" : `${verdictHeadline(now, atMs, time)}, even from a full bank`}
               </span>
-              <span className="block text-night-100">{unknownVerdictSentence(now, tz)}</span>
+              <span className="block text-night-100">{unknownVerdictSentence(now, atMs, time)}</span>
             </Explainable>
           </div>
         ) : (
         <div className={cn("rounded-2xl border p-3", td.reaches ? "border-leaf-400" : "border-ember-500")}>
           <Explainable explanation={explainVerdict} className="block w-full no-underline">
             <span className={cn("block text-xl font-bold", td.reaches ? "text-leaf-400" : "text-ember-500")} data-testid="verdict">
-              {td.reaches ? "Makes it till dawn" : "Falls short of the next charge"}
+              {verdictHeadline(now, atMs, time)}
             </span>
-            <span className="block text-night-100">{verdictSentence(now, tz)}</span>
+            <span className="block text-night-100">{verdictSentence(now, atMs, time)}</span>
           </Explainable>
         </div>
         )}
@@ -336,7 +357,7 @@ function NowBody({
             <dt className="text-sm text-night-300">Next charge</dt>
             <dd className="text-lg font-bold">
               <Explainable explanation={explainVerdict}>
-                {td.chargingNow ? "now" : td.nextWindowMs === null ? `none in ${horizonH} h` : `${formatClock(td.nextWindowMs, tz)}, ${windowWords[td.nextWindowKind ?? "sun"]}`}
+                {td.chargingNow ? "now" : td.nextWindowMs === null ? `none in ${horizonH} h` : `${clockWords(td.nextWindowMs, atMs, time)}, ${windowWords[td.nextWindowKind ?? "sun"]}`}
               </Explainable>
             </dd>
           </div>
@@ -445,7 +466,7 @@ function NowBody({
   );
 }
 
-function verdictSentence(now: NowResult, tz: string): string {
+function verdictSentence(now: NowResult, atMs: number, time: TimeSettings): string {
   const td = now.bank.tillDawn;
   if (td.chargingNow) return "Charging now: sources give more than the loads draw.";
   if (td.nextWindowMs === null) {
@@ -453,26 +474,26 @@ function verdictSentence(now: NowResult, tz: string): string {
       ? `No charge expected in ${now.projection.horizonH} h, and the bank stays above its floor.`
       : `No charge expected in ${now.projection.horizonH} h; the floor comes in ${formatDuration(now.bank.runwayH)}.`;
   }
-  const when = formatClock(td.nextWindowMs, tz);
-  const what = windowWords[td.nextWindowKind ?? "sun"];
+  const when = clockWords(td.nextWindowMs, atMs, time);
+  const what = windowNames[td.nextWindowKind ?? "sun"];
   if (td.reaches) {
     const spare = td.marginSocPct === null ? "" : ` with ${formatPct(td.marginSocPct)} above the floor`;
     const margin = td.marginH === null ? "" : ` and ${formatDuration(td.marginH)} to spare`;
-    return `Reaches ${what} at ${when}${spare}${margin}.`;
+    return `At about ${when}, when ${what}, the bank is still${spare || " above the floor"}${margin}.`;
   }
-  return `Reaches the floor ${formatDuration(Math.abs(td.marginH ?? 0))} before ${what} at ${when}.`;
+  return `The bank reaches its floor ${formatDuration(Math.abs(td.marginH ?? 0))} before ${what}, about ${when}.`;
 }
 
 /** With no SoC known the projection starts from a full bank: only "falls short" is a fact then. */
-function unknownVerdictSentence(now: NowResult, tz: string): string {
+function unknownVerdictSentence(now: NowResult, atMs: number, time: TimeSettings): string {
   const td = now.bank.tillDawn;
   if (td.chargingNow) return "Charging now: sources give more than the loads draw.";
   if (td.nextWindowMs === null) return `No charge expected in ${now.projection.horizonH} h.`;
-  const when = formatClock(td.nextWindowMs, tz);
-  const what = windowWords[td.nextWindowKind ?? "sun"];
+  const when = clockWords(td.nextWindowMs, atMs, time);
+  const what = windowNames[td.nextWindowKind ?? "sun"];
   return td.reaches
-    ? `A full bank would reach ${what} at ${when}; a less full one may not.`
-    : `Even a full bank reaches the floor ${formatDuration(Math.abs(td.marginH ?? 0))} before ${what} at ${when}.`;
+    ? `A full bank would last till ${what}, about ${when}; a less full one may not.`
+    : `Even a full bank reaches the floor ${formatDuration(Math.abs(td.marginH ?? 0))} before ${what}, about ${when}.`;
 }
 
 function SyncBadge({ status, role }: { status: "idle" | "saving" | "offline" | "error"; role: NowRole }) {
