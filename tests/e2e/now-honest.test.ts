@@ -50,7 +50,7 @@ describe("Now screen with no SoC known", () => {
       expect(await ask.getByRole("button", { name }).count()).toBe(1);
     }
     // A range from nothing to the full-bank figure, never a single runway.
-    expect(await page.getByTestId("runway").textContent()).toMatch(/^0 to (\d+ h( \d\d m)?|\d+ m|more than \d+ h)$/);
+    expect(await page.getByTestId("runway").textContent()).toMatch(/^0 to (\d+\u00a0h( \d\d\u00a0m)?|\d+\u00a0m|more than \d+\u00a0h)$/);
     expect(await page.getByTestId("soc").textContent()).toBe("unknown");
     expect(await page.getByTestId("verdict").textContent()).not.toMatch(/^Makes it/);
     expect(await page.getByRole("meter", { name: "State of charge" }).count()).toBe(0);
@@ -117,5 +117,20 @@ describe("Now screen names the charging window", () => {
     expect(await band.textContent()).not.toMatch(/dawn/i);
     expect(await band.getByTestId("band-full").textContent()).toBe("100 % full");
     await context.close();
+  });
+});
+
+describe("Now screen when the runway passes the horizon", () => {
+  test("each load's cost shows in Wh/day and days of autonomy, and no unit sits alone on a line", async () => {
+    const page = await openNow(await copyOfJuniper(`Juniper long ${crypto.randomUUID().slice(0, 8)}`, { pct: 100, ageH: 0.2 }));
+    await page.getByRole("button", { name: "Storage", exact: true }).click();
+    await expect.poll(() => page.getByTestId("runway").textContent(), { timeout: 10_000 }).toMatch(/^more than \d+\u00a0h$/);
+    // The costs come in one load at a time after the change.
+    await expect.poll(() => page.getByTestId("load-day-cost").count(), { timeout: 10_000 }).toBeGreaterThan(3);
+    expect(await page.getByText(/stays beyond/).count()).toBe(0);
+    for (const t of await page.getByTestId("load-day-cost").allTextContents()) {
+      expect(t).toMatch(/^\d+\u00a0(k?Wh)\/day( if on)? · (\d+(\.\d)?\u00a0days|\d+\u00a0h \d\d\u00a0m|\d+\u00a0m|\d+\u00a0h) of autonomy$|no end to autonomy without it$/);
+    }
+    await page.context().close();
   });
 });

@@ -7,7 +7,7 @@ import { oneLoadRig } from "~/engine/test-rigs";
 import { emptyRigState, type RigState } from "~/schemas/rig-state";
 import { NowScreen, type NowRole } from "./now-screen";
 import { computeNow, loadCost } from "./now-model";
-import { formatDelta, formatDuration } from "./format";
+import { autonomyDaysCost, formatDays, formatDelta, formatDuration } from "./format";
 import { formatDayTime } from "~/lib/datetime";
 
 // An October evening at Juniper's home, 19:30 local (UTC−6).
@@ -35,7 +35,7 @@ function render(state: RigState, role: NowRole = "crew") {
   );
 }
 
-const text = (html: string) => html.replace(/<!-- -->/g, "").replace(/<[^>]+>/g, " ").replace(/&#x27;/g, "'").replace(/\s+/g, " ");
+const text = (html: string) => html.replace(/<!-- -->/g, "").replace(/<[^>]+>/g, " ").replace(/&#x27;/g, "'").replace(/[^\S\u00a0]+/g, " ");
 
 describe("Now screen text from the engine", () => {
   test("the runway shown is worked by hand: 1,024 Wh usable at 64 W is 16 h", () => {
@@ -48,7 +48,7 @@ describe("Now screen text from the engine", () => {
         <NowScreen rigId="rig-1" rigName="Test rig" model={model} revision={1} state={state} role="crew" latestReading={null} initialNowMs={at} onChange={() => {}} />
       </MemoryRouter>,
     );
-    expect(html).toContain(`data-testid="runway">16 h 00 m<`);
+    expect(html).toContain(`data-testid="runway">16\u00a0h 00\u00a0m<`);
     expect(text(html)).toContain("to the usable floor (20 %)");
   });
 
@@ -115,10 +115,22 @@ describe("Now screen text from the engine", () => {
 
 describe("Runway formatting", () => {
   test("hours and minutes, signed changes and the horizon", () => {
-    expect(formatDuration(29.42)).toBe("29 h 25 m");
-    expect(formatDuration(0.5)).toBe("30 m");
-    expect(formatDuration(null)).toBe("more than 72 h");
-    expect(formatDelta(-1.6667)).toBe("\u22121 h 40 m");
-    expect(formatDelta(0.004)).toBe("±0 m");
+    // Units hold to their numbers with a no-break space, so "h" never sits alone on a line.
+    expect(formatDuration(29.42)).toBe("29\u00a0h 25\u00a0m");
+    expect(formatDuration(0.5)).toBe("30\u00a0m");
+    expect(formatDuration(null)).toBe("more than 72\u00a0h");
+    expect(formatDelta(-1.6667)).toBe("\u22121\u00a0h 40\u00a0m");
+    expect(formatDelta(0.004)).toBe("±0\u00a0m");
+  });
+
+  test("a load's cost in days of autonomy, worked by hand", () => {
+    // 2,000 Wh usable, 500 Wh/day in all, the load 100 Wh/day: 2000/400 − 2000/500 = 5 − 4 = 1 day.
+    expect(autonomyDaysCost(2000, 500, 100, true)).toBeCloseTo(1, 10);
+    // Off, adding 100 Wh/day to 400: 2000/400 − 2000/500 = 1 day as well.
+    expect(autonomyDaysCost(2000, 400, 100, false)).toBeCloseTo(1, 10);
+    // Nothing else draws: without it autonomy has no end.
+    expect(autonomyDaysCost(2000, 100, 100, true)).toBeNull();
+    expect(formatDays(1)).toBe("1.0\u00a0days");
+    expect(formatDays(0.25)).toBe("6\u00a0h 00\u00a0m");
   });
 });
