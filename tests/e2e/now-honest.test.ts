@@ -134,3 +134,31 @@ describe("Now screen when the runway passes the horizon", () => {
     await page.context().close();
   });
 });
+
+describe("Now screen explanations in plain words", () => {
+  test("the How sheets name no code variables and no UTC timestamps, and resting-voltage advice fits LiFePO4", async () => {
+    const page = await openNow(await copyOfJuniper(`Juniper how ${crypto.randomUUID().slice(0, 8)}`, { pct: 70, ageH: 0.5 }));
+    const developerNames = /capacityWh|startSocPct|stopSocPct|weatherFactor|windowAt|runwayH|horizonH|stepMin|\d{4}-\d\d-\d\dT\d\d:\d\d/;
+    for (const [open, title] of [
+      [() => page.getByTestId("runway").click(), "How: Runway"],
+      [() => page.getByTestId("verdict").click(), "How: Till the next charge"],
+    ] as const) {
+      await open();
+      const dialog = page.getByRole("dialog", { name: title });
+      await dialog.waitFor();
+      const text = (await dialog.textContent())!;
+      expect(text).not.toMatch(developerNames);
+      expect(text).toMatch(/Inputs/);
+      await dialog.getByRole("button", { name: "Close" }).click();
+    }
+    // Juniper's house bank is LiFePO4: its own advice, not lead-acid's rest time.
+    await page.getByRole("button", { name: "Update SoC" }).click();
+    const soc = page.getByRole("dialog", { name: "State of charge" });
+    await soc.getByRole("tab", { name: "Resting voltage" }).click();
+    const advice = (await soc.getByTestId("resting-advice").textContent())!;
+    expect(advice).toMatch(/flat curve/);
+    expect(advice).toMatch(/voltage alone cannot give the SoC/);
+    expect(advice).not.toMatch(/6 hours/);
+    await page.context().close();
+  });
+});

@@ -11,7 +11,7 @@ import { Sheet } from "~/components/ui/sheet";
 import { cn } from "~/lib/cn";
 import { socEntryFor, type LatestReading, type RigState, type SocEntry, type StateChange } from "~/schemas/rig-state";
 import { chartSeries, computeNow, loadCost, placeOf, type ChartSeries, type LoadCost, type NowResult } from "./now-model";
-import { ExplainProvider, Explainable, type Explanation } from "./explain";
+import { ExplainProvider, Explainable, restingAdvice, type Explanation } from "./explain";
 import { HorizonBand } from "./horizon-band";
 import { LoadSwitches, StandbyList } from "./load-switches";
 import { ModesBar, type ModeEditBody } from "./modes";
@@ -129,7 +129,7 @@ export function NowScreen(props: NowScreenProps) {
     );
   }
   return (
-    <ExplainProvider>
+    <ExplainProvider time={{ timeZone: model.timeZone, clock: props.clock ?? "24h" }}>
       <NowBody {...props} knowledge={knowledge} now={result.now} atMs={atMs} pinned={pinned} setPinned={setPinned} canWrite={canWrite} />
     </ExplainProvider>
   );
@@ -206,7 +206,7 @@ function NowBody({
     value: unknown ? (td.reaches ? "Not known" : "Falls short") : td.reaches ? "Makes it" : "Falls short",
     plain: unknown
       ? `${unknownVerdictSentence(now, atMs, time)} The state of charge is not known; these figures start from a full bank, the best case.`
-      : td.nextWindowMs === null ? td.summary : `${verdictSentence(now, atMs, time)} ${td.summary}`,
+      : verdictSentence(now, atMs, time),
     how: td.how,
   });
   const explainNet = (): Explanation => ({
@@ -229,8 +229,8 @@ function NowBody({
         : "Nobody has entered the state of charge yet. The runway is shown only as an upper bound (from a full bank) until it is entered."
       : !soc
       ? "Nobody has entered the state of charge yet."
-      : `${formatPct(bank.startSocPct)} ${sourceWords[soc.source]}, read ${formatAgo(Date.parse(soc.takenAt), atMs)} (${formatClock(Date.parse(soc.takenAt), tz)}).${soc.restingV !== undefined ? ` Resting voltage ${soc.restingV} V.` : ""}`,
-    ...(now.socEstimate ? { how: now.socEstimate.how } : {}),
+      : `${formatPct(bank.startSocPct)} ${sourceWords[soc.source]}, read ${formatAgo(Date.parse(soc.takenAt), atMs)} (${clockWords(Date.parse(soc.takenAt), atMs, time)}).${soc.restingV !== undefined ? ` Resting voltage ${soc.restingV}\u00a0V. ${restingAdvice(now.bankModel.chemistry)}` : ""}`,
+    ...(now.socEstimate ? { how: { ...now.socEstimate.how, note: restingAdvice(now.bankModel.chemistry) } } : {}),
     inputs: [
       ["Usable floor", formatPct(bank.stopSocPct)],
       ["SoC at the low-voltage cutoff", formatPct(now.cutoffSocPct)],
@@ -373,7 +373,7 @@ function NowBody({
                       ? "Not known until the state of charge is given."
                       : now.projection.nextSunriseMs === null
                       ? "The sun does not rise within the projection at this place."
-                      : `The projection's state of charge at the next sunrise, ${formatClock(now.projection.nextSunriseMs, tz)} at ${place.label}.`,
+                      : `The projection's state of charge at the next sunrise, ${clockWords(now.projection.nextSunriseMs, atMs, time)} at ${place.label}.`,
                   how: bank.how,
                 }}
               >

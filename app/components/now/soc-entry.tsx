@@ -1,4 +1,5 @@
 import { useId, useState } from "react";
+import { restingAdvice } from "./explain";
 import type { Bank } from "~/engine/model";
 import { socFromRestingVoltage } from "~/engine/battery";
 import { utcOffsetMinutes } from "~/engine/solar";
@@ -137,7 +138,7 @@ export function SocEntryForm({
             placeholder="e.g. 13.20"
             className="tabular min-h-12 w-full rounded-xl border border-night-600 bg-night-950 px-3 text-2xl"
           />
-          <p className="text-sm text-night-300">Read with no charge and no load for a while (lead-acid: about 6 hours).</p>
+          <p className="text-sm text-night-300" data-testid="resting-advice">{restingAdvice(bank.chemistry)}</p>
           {estimate ? (
             <div aria-live="polite" className={cn("rounded-xl border p-3", estimate.confidence === "low" ? "border-ember-500" : "border-night-600")}>
               <p className="tabular text-lg font-bold">
