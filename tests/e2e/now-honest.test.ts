@@ -7,6 +7,7 @@ import type { Page } from "playwright-core";
 import { baseUrl, phoneContext } from "./browser";
 import { signIn } from "./auth";
 import { setUpJuniper } from "./juniper";
+import { axeViolations, nodeCount } from "./axe";
 import { rigState, userPreferences, users } from "~/db/schema";
 import { createRig, getAsBuilt } from "~/repos/rigs.server";
 import type { RigModel } from "~/engine/model";
@@ -159,6 +160,33 @@ describe("Now screen explanations in plain words", () => {
     expect(advice).toMatch(/flat curve/);
     expect(advice).toMatch(/voltage alone cannot give the SoC/);
     expect(advice).not.toMatch(/6 hours/);
+    await page.context().close();
+  });
+});
+
+describe("Now screen's new states, checked with axe and in night mode", () => {
+  test("the SoC-first state has no axe violations in day or night mode, and the verdict carries its meaning by data-tone", async () => {
+    const rigId = await copyOfJuniper(`Juniper axe ${crypto.randomUUID().slice(0, 8)}`);
+    for (const mode of ["day", "night"] as const) {
+      const context = await phoneContext(juniper.browser);
+      await signIn(context, "ada@juniper.example");
+      await context.addCookies([{ name: "tilldawn_night", value: mode === "night" ? "1" : "0", url: baseUrl() }]);
+      const page = await context.newPage();
+      await page.goto(`${baseUrl()}/rigs/${rigId}`, { waitUntil: "networkidle" });
+      await page.getByRole("group", { name: "How full is the bank?" }).waitFor();
+      await page.locator("[data-testid=projection-chart] canvas").waitFor();
+      const vs = await axeViolations(page);
+      console.log(`AXE now-soc-unknown ${mode} ${nodeCount(vs)}`);
+      expect(vs.map((v) => `${v.id} ×${v.nodes.length}`)).toEqual([]);
+      // Unknown SoC: the verdict box is "wait" unless even a full bank falls short ("bad"); never "good".
+      expect(["wait", "bad"]).toContain(await page.getByTestId("verdict-box").getAttribute("data-tone"));
+      await context.close();
+    }
+    // With a SoC the tone follows the verdict.
+    const page = await openNow(await copyOfJuniper(`Juniper tone ${crypto.randomUUID().slice(0, 8)}`, { pct: 95, ageH: 0.2 }));
+    const verdict = (await page.getByTestId("verdict").textContent())!;
+    const tone = await page.getByTestId("verdict-box").getAttribute("data-tone");
+    expect(tone).toBe(/^Falls short/.test(verdict) ? "bad" : "good");
     await page.context().close();
   });
 });

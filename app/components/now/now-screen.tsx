@@ -323,7 +323,7 @@ function NowBody({
         </div>
 
         {unknown ? (
-          <div className={cn("rounded-2xl border-2 border-dashed p-3", td.reaches ? "border-night-500" : "border-ember-500")}>
+          <div data-testid="verdict-box" data-tone={td.reaches ? "wait" : "bad"} className={cn("rounded-2xl border-2 border-dashed p-3", td.reaches ? "border-night-500" : "border-ember-500")}>
             <Explainable explanation={explainVerdict} className="block w-full no-underline">
               <span className={cn("block text-xl font-bold", td.reaches ? "text-night-100" : "text-ember-500")} data-testid="verdict">
                 {td.reaches ? "Till the next charge: not known until the SoC is given" : `${verdictHeadline(now, atMs, time)}, even from a full bank`}
@@ -332,7 +332,7 @@ function NowBody({
             </Explainable>
           </div>
         ) : (
-        <div className={cn("rounded-2xl border p-3", td.reaches ? "border-leaf-400" : "border-ember-500")}>
+        <div data-testid="verdict-box" data-tone={td.reaches ? "good" : "bad"} className={cn("rounded-2xl border p-3", td.reaches ? "border-leaf-400" : "border-ember-500")}>
           <Explainable explanation={explainVerdict} className="block w-full no-underline">
             <span className={cn("block text-xl font-bold", td.reaches ? "text-leaf-400" : "text-ember-500")} data-testid="verdict">
               {verdictHeadline(now, atMs, time)}
