@@ -1,4 +1,5 @@
 import { isRouteErrorResponse, Link } from "react-router";
+import { useDisplay } from "~/hooks/use-display";
 import type { Route } from "./+types/rig";
 import { requireRigRole } from "~/auth/guards.server";
 import { getDb } from "~/db/db.server";
@@ -52,6 +53,7 @@ export default function RigNow({ loaderData }: Route.ComponentProps) {
   const model = modelQuery.data ?? loaderData.model;
   const shared = useRigState(rigId, loaderData.shared, model.model);
   const modeEdit = useModeEdit(rigId);
+  const display = useDisplay(model.model.timeZone);
   return (
     <NowScreen
       rigId={rigId}
@@ -66,6 +68,7 @@ export default function RigNow({ loaderData }: Route.ComponentProps) {
       onModeEdit={(body) => modeEdit.mutateAsync(body)}
       status={shared.status}
       notices={shared.notices}
+      clock={display.time.clock}
     />
   );
 }

@@ -2,20 +2,42 @@
 
 const MINUS = "\u2212";
 
-/** 29.42 → "29 h 25 m"; 0.5 → "30 m"; null → "more than 72 h". */
+/** A number and its unit never part at a line end. */
+const NBSP = "\u00a0";
+
+/** 29.42 → "29 h 25 m"; 0.5 → "30 m"; null → "more than 72 h" (no-break spaces before units). */
 export function formatDuration(hours: number | null, horizonH = 72): string {
-  if (hours === null) return `more than ${horizonH} h`;
+  if (hours === null) return `more than ${horizonH}${NBSP}h`;
   const totalMin = Math.round(Math.abs(hours) * 60);
   const h = Math.floor(totalMin / 60);
   const m = totalMin % 60;
-  if (h === 0) return `${m} m`;
-  if (h >= 24 && m === 0) return `${h} h`;
-  return `${h} h ${String(m).padStart(2, "0")} m`;
+  if (h === 0) return `${m}${NBSP}m`;
+  if (h >= 24 && m === 0) return `${h}${NBSP}h`;
+  return `${h}${NBSP}h ${String(m).padStart(2, "0")}${NBSP}m`;
+}
+
+/** 1.04 → "1.0 days", 0.26 → "6 h" (short spans read better in hours). */
+export function formatDays(days: number): string {
+  if (days < 1) return formatDuration(days * 24);
+  return `${days.toFixed(days < 10 ? 1 : 0)}${NBSP}days`;
+}
+
+/**
+ * What a load is worth in days of autonomy with no charging: the full bank's usable energy over
+ * the day's draw, with the load against without it (usableWh / (total − load) − usableWh / total
+ * for a load that is on; for one that is off, what adding its Wh/day would take away).
+ * Null when the rest of the rig draws nothing (autonomy without the load has no end).
+ */
+export function autonomyDaysCost(usableWh: number, totalWhPerDay: number, loadWhPerDay: number, on: boolean): number | null {
+  const withLoad = on ? totalWhPerDay : totalWhPerDay + loadWhPerDay;
+  const without = withLoad - loadWhPerDay;
+  if (without <= 0 || withLoad <= 0) return null;
+  return usableWh / without - usableWh / withLoad;
 }
 
 /** Signed runway change: −1.67 → "−1 h 40 m", 0.5 → "+30 m", tiny → "±0 m". */
 export function formatDelta(hours: number): string {
-  if (Math.round(Math.abs(hours) * 60) === 0) return "±0 m";
+  if (Math.round(Math.abs(hours) * 60) === 0) return `±0${NBSP}m`;
   return `${hours < 0 ? MINUS : "+"}${formatDuration(Math.abs(hours))}`;
 }
 
@@ -35,7 +57,7 @@ export function formatPct(p: number, digits = 0): string {
 }
 
 export function formatWh(wh: number): string {
-  return wh >= 1000 ? `${(wh / 1000).toFixed(2)} kWh` : `${Math.round(wh)} Wh`;
+  return wh >= 1000 ? `${(wh / 1000).toFixed(2)}${NBSP}kWh` : `${Math.round(wh)}${NBSP}Wh`;
 }
 
 const timeFormats = new Map<string, Intl.DateTimeFormat>();

@@ -7,7 +7,8 @@ import { Button } from "~/components/ui/button";
 import { cn } from "~/lib/cn";
 import { blockedSteps, type LoadCost, type NowResult } from "./now-model";
 import { Explainable } from "./explain";
-import { formatDelta, formatDuration, formatW, formatWh } from "./format";
+import { autonomyDaysCost, formatDays, formatDelta, formatDuration, formatW, formatWh } from "./format";
+import { usableEnergy } from "~/engine/battery";
 import { effectiveLoadsOn, type RigState, type StateChange } from "~/schemas/rig-state";
 
 interface Group {
@@ -55,6 +56,7 @@ export function LoadSwitches({
   const wantedSet = effectiveLoadsOn(model, now.engineState.modeId, state.switches);
   const budgetById = new Map<string, LoadBudget>(now.projection.budget.loads.map((l) => [l.loadId, l]));
   const groups = groupLoadsByBus(model, now);
+  const usableWh = usableEnergy(now.bankModel, 100).usableWh;
 
   const toggle = (loadId: string, next: boolean) => {
     const lg = now.graph.loads[loadId];
@@ -110,7 +112,7 @@ export function LoadSwitches({
                           </Explainable>
                         ) : null}
                         {" · "}
-                        <CostLabel cost={cost} on={isWanted} name={load.name} horizonH={now.projection.horizonH} />
+                        <CostLabel cost={cost} on={isWanted} name={load.name} horizonH={now.projection.horizonH} budget={b} totalWhPerDay={now.projection.budget.totalWhPerDay} usableWh={usableWh} />
                       </p>
                       {isWanted && !running && blocked.length ? (
                         <p className="text-sm text-ember-300">Not running: {blocked.map((s) => `${s.name} is ${state.positions[s.deviceId]}`).join(", ")}</p>
@@ -168,9 +170,32 @@ export function LoadSwitches({
   );
 }
 
-function CostLabel({ cost, on, name, horizonH }: { cost: LoadCost | undefined; on: boolean; name: string; horizonH: number }) {
+function CostLabel({ cost, on, name, horizonH, budget, totalWhPerDay, usableWh }: { cost: LoadCost | undefined; on: boolean; name: string; horizonH: number; budget: LoadBudget | undefined; totalWhPerDay: number; usableWh: number }) {
   if (!cost) return <span className="text-night-300">runway cost …</span>;
-  if (cost.deltaH === null) return <span className="text-night-300">runway stays beyond {horizonH} h</span>;
+  if (cost.deltaH === null) {
+    // The runway passes the horizon either way: compare loads by their energy a day and what it takes off the days of autonomy.
+    const wh = budget ? (on ? budget.whPerDay : budget.bankW * (budget.dutyCyclePct / 100) * budget.hoursPerDay) : 0;
+    const days = autonomyDaysCost(usableWh, totalWhPerDay, wh, on);
+    const text = `${formatWh(wh)}/day${on ? "" : " if on"} · ${days === null ? "no end to autonomy without it" : `${formatDays(days)} of autonomy`}`;
+    return (
+      <Explainable
+        explanation={{
+          title: `${name} in a day`,
+          value: text,
+          plain: `The runway lasts beyond the ${horizonH} hours the projection looks ahead whether ${name} is on or off, so its cost is shown per day: ${formatWh(wh)} a day${on ? "" : " if it ran its hours in this mode"}. With no charging, the full bank's ${formatWh(usableWh)} of usable energy lasts ${days === null ? "without end once it is off" : `${formatDays(days)} ${on ? "longer without it" : "less with it"}`}.`,
+          inputs: [
+            [`${name}, energy a day`, formatWh(wh)],
+            ["Whole rig, energy a day", formatWh(totalWhPerDay)],
+            ["Usable energy of a full bank", formatWh(usableWh)],
+          ],
+          source: "Days of autonomy = usable energy ÷ energy a day, with and without the load (trade practice; no charging counted).",
+        }}
+        className="text-dawn-300"
+      >
+        <span data-testid="load-day-cost">{text}</span>
+      </Explainable>
+    );
+  }
   const text = on ? formatDelta(cost.deltaH) : `${formatDelta(cost.deltaH)} if on`;
   return (
     <Explainable

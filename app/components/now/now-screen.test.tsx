@@ -8,7 +8,8 @@ import { emptyRigState, type RigState } from "~/schemas/rig-state";
 import type { Role } from "~/auth/roles";
 import { NowScreen } from "./now-screen";
 import { computeNow, loadCost } from "./now-model";
-import { formatDelta, formatDuration } from "./format";
+import { autonomyDaysCost, formatDays, formatDelta, formatDuration } from "./format";
+import { formatDayTime } from "~/lib/datetime";
 
 // An October evening at Juniper's home, 19:30 local (UTC−6).
 const at = Date.parse("2026-10-15T19:30:00-06:00");
@@ -35,7 +36,7 @@ function render(state: RigState, role: Role = "crew") {
   );
 }
 
-const text = (html: string) => html.replace(/<!-- -->/g, "").replace(/<[^>]+>/g, " ").replace(/&#x27;/g, "'").replace(/\s+/g, " ");
+const text = (html: string) => html.replace(/<!-- -->/g, "").replace(/<[^>]+>/g, " ").replace(/&#x27;/g, "'").replace(/[^\S\u00a0]+/g, " ");
 
 describe("Now screen text from the engine", () => {
   test("the runway shown is worked by hand: 1,024 Wh usable at 64 W is 16 h", () => {
@@ -48,7 +49,7 @@ describe("Now screen text from the engine", () => {
         <NowScreen rigId="rig-1" rigName="Test rig" model={model} revision={1} state={state} role="crew" latestReading={null} initialNowMs={at} onChange={() => {}} />
       </MemoryRouter>,
     );
-    expect(html).toContain(`data-testid="runway">16 h 00 m<`);
+    expect(html).toContain(`data-testid="runway">16\u00a0h 00\u00a0m<`);
     expect(text(html)).toContain("to the usable floor (20 %)");
   });
 
@@ -56,22 +57,31 @@ describe("Now screen text from the engine", () => {
     const now = computeNow({ model: juniperModel, state: stateWith(80), atMs: at });
     expect(now.bank.tillDawn.reaches).toBe(true);
     const t = text(render(stateWith(80)));
-    expect(t).toContain("Makes it till dawn");
-    expect(t).toMatch(/Reaches sunshine at \w{3} \d\d:\d\d with \d+ % above the floor and .+ to spare\./);
+    // The window is named for what it is, at the engine's window time, in the rig's zone (24-hour clock by default).
+    const when = formatDayTime(now.bank.tillDawn.nextWindowMs!, { timeZone: juniperModel.timeZone, clock: "24h" });
+    expect(t).toContain(`Makes it till the sun is strong enough, about ${when}`);
+    expect(t).not.toContain("till dawn");
+    expect(t).toMatch(/At about \w{3} \d\d:\d\d, when the sun is strong enough, the bank is still with \d+ % above the floor and .+ to spare\./);
   });
 
   test("a nearly empty bank says it falls short, and by how long", () => {
     const now = computeNow({ model: juniperModel, state: stateWith(20), atMs: at });
     expect(now.bank.tillDawn.reaches).toBe(false);
     const t = text(render(stateWith(20)));
-    expect(t).toContain("Falls short of the next charge");
-    expect(t).toContain(`Reaches the floor ${formatDuration(Math.abs(now.bank.tillDawn.marginH ?? 0))} before sunshine`);
+    const when = formatDayTime(now.bank.tillDawn.nextWindowMs!, { timeZone: juniperModel.timeZone, clock: "24h" });
+    expect(t).toContain(`Falls short before the sun is strong enough, about ${when}`);
+    expect(t).toContain(`The bank reaches its floor ${formatDuration(Math.abs(now.bank.tillDawn.marginH ?? 0))} before the sun is strong enough, about ${when}.`);
   });
 
-  test("with no SoC entered, the screen says a full bank is assumed", () => {
+  test("with no SoC entered, the screen asks for it and shows the runway only as a range up to the full-bank figure", () => {
     const t = text(render(emptyRigState("rig-1")));
-    expect(t).toContain("No SoC entered yet: a full bank is assumed.");
-    expect(t).toContain("100 %");
+    // The upper end is the runway from a full bank entered at this very minute.
+    const full = computeNow({ model: juniperModel, state: { ...emptyRigState("rig-1"), soc: { socPct: 100, source: "entered", takenAt: new Date(at).toISOString() } }, atMs: at });
+    expect(t).toContain("No SoC entered yet.");
+    expect(t).toContain("How full is the bank?");
+    expect(t).toContain(`0 to ${formatDuration(full.bank.runwayH, full.projection.horizonH)}`);
+    expect(t).not.toContain("Makes it till");
+    expect(t).not.toContain("a full bank is assumed");
   });
 
   test("switching a load off lengthens the runway by what the engine says it costs", () => {
@@ -106,10 +116,22 @@ describe("Now screen text from the engine", () => {
 
 describe("Runway formatting", () => {
   test("hours and minutes, signed changes and the horizon", () => {
-    expect(formatDuration(29.42)).toBe("29 h 25 m");
-    expect(formatDuration(0.5)).toBe("30 m");
-    expect(formatDuration(null)).toBe("more than 72 h");
-    expect(formatDelta(-1.6667)).toBe("\u22121 h 40 m");
-    expect(formatDelta(0.004)).toBe("±0 m");
+    // Units hold to their numbers with a no-break space, so "h" never sits alone on a line.
+    expect(formatDuration(29.42)).toBe("29\u00a0h 25\u00a0m");
+    expect(formatDuration(0.5)).toBe("30\u00a0m");
+    expect(formatDuration(null)).toBe("more than 72\u00a0h");
+    expect(formatDelta(-1.6667)).toBe("\u22121\u00a0h 40\u00a0m");
+    expect(formatDelta(0.004)).toBe("±0\u00a0m");
+  });
+
+  test("a load's cost in days of autonomy, worked by hand", () => {
+    // 2,000 Wh usable, 500 Wh/day in all, the load 100 Wh/day: 2000/400 − 2000/500 = 5 − 4 = 1 day.
+    expect(autonomyDaysCost(2000, 500, 100, true)).toBeCloseTo(1, 10);
+    // Off, adding 100 Wh/day to 400: 2000/400 − 2000/500 = 1 day as well.
+    expect(autonomyDaysCost(2000, 400, 100, false)).toBeCloseTo(1, 10);
+    // Nothing else draws: without it autonomy has no end.
+    expect(autonomyDaysCost(2000, 100, 100, true)).toBeNull();
+    expect(formatDays(1)).toBe("1.0\u00a0days");
+    expect(formatDays(0.25)).toBe("6\u00a0h 00\u00a0m");
   });
 });

@@ -10,16 +10,18 @@ import type { RigModel } from "~/engine/model";
 import { Button } from "~/components/ui/button";
 import { Sheet } from "~/components/ui/sheet";
 import { cn } from "~/lib/cn";
-import type { LatestReading, RigState, SocEntry, StateChange } from "~/schemas/rig-state";
+import { socEntryFor, type LatestReading, type RigState, type SocEntry, type StateChange } from "~/schemas/rig-state";
 import { chartSeries, computeNow, loadCost, placeOf, type ChartSeries, type LoadCost, type NowResult } from "./now-model";
-import { ExplainProvider, Explainable, type Explanation } from "./explain";
+import { ExplainProvider, Explainable, restingAdvice, type Explanation } from "./explain";
 import { HorizonBand } from "./horizon-band";
 import { LoadSwitches, StandbyList } from "./load-switches";
 import { ModesBar, type ModeEditBody } from "./modes";
 import { PlaceWeather } from "./place-weather";
-import { SocEntryForm } from "./soc-entry";
+import { SocEntryForm, type SocEntryTab } from "./soc-entry";
+import { primaryBank } from "~/engine/primary-bank";
 import { DawnPlanCard } from "./dawn-plan";
 import { formatA, formatAgo, formatClock, formatDuration, formatPct, formatW } from "./format";
+import { dayKey, formatDayTime, formatTime, type Clock, type TimeSettings } from "~/lib/datetime";
 
 const ProjectionChart = lazy(() => import("./projection-chart"));
 
@@ -38,12 +40,60 @@ export interface NowScreenProps {
   onModeEdit?: (body: ModeEditBody) => Promise<unknown>;
   status?: "idle" | "saving" | "offline" | "error";
   notices?: Array<{ id: number; tone: "info" | "warn" | "error"; text: string }>;
+  /** The person's 12- or 24-hour clock (times are in the rig's time zone). */
+  clock?: Clock;
 }
 
-/** A SoC older than this is flagged as stale. */
-const STALE_AFTER_MS = 6 * 3_600_000;
+/** A SoC older than this is flagged as stale; with nothing newer, the runway is not shown as a fact. */
+export const STALE_AFTER_MS = 6 * 3_600_000;
 
-const windowWords = { sun: "sunshine", drive: "a drive", shore: "shore power", generator: "the generator", charger: "a charger" } as const;
+/**
+ * How the screen knows the primary bank's SoC: a fresh entry ("known"), a fresh logbook
+ * reading with a SoC that carries a missing or stale entry forward ("carried"), or not at all
+ * ("unknown": no entry, or a stale one with no fresh reading).
+ */
+export type SocKnowledge = { kind: "known" } | { kind: "carried"; entry: SocEntry } | { kind: "unknown"; stale: SocEntry | null };
+
+export function socKnowledge(model: RigModel, state: RigState, latestReading: LatestReading | null, atMs: number): SocKnowledge {
+  const pid = primaryBank(model).id;
+  const entry = socEntryFor(state, pid, pid);
+  if (entry && atMs - Date.parse(entry.takenAt) <= STALE_AFTER_MS) return { kind: "known" };
+  const readingAt = latestReading ? Date.parse(latestReading.takenAt) : NaN;
+  if (
+    latestReading &&
+    latestReading.socPct !== null &&
+    atMs - readingAt <= STALE_AFTER_MS &&
+    (!entry || readingAt > Date.parse(entry.takenAt))
+  ) {
+    return { kind: "carried", entry: { socPct: latestReading.socPct, source: "logbook", takenAt: latestReading.takenAt } };
+  }
+  return { kind: "unknown", stale: entry };
+}
+
+/** The state the projection runs on: a carried reading fills in; with no SoC, a full bank gives the upper bound. */
+function planningState(state: RigState, knowledge: SocKnowledge, atMs: number): RigState {
+  if (knowledge.kind === "known") return state;
+  const soc: SocEntry = knowledge.kind === "carried" ? knowledge.entry : { socPct: 100, source: "entered", takenAt: new Date(atMs).toISOString() };
+  return { ...state, soc };
+}
+
+const windowWords = { sun: "sun strong enough", drive: "a drive", shore: "shore power", generator: "the generator", charger: "a charger" } as const;
+/** The next charging window named for what it is: the sun counts from when it out-gives the loads, not from sunrise. */
+const windowNames = { sun: "the sun is strong enough", drive: "the next drive", shore: "shore power", generator: "the generator runs", charger: "a charger" } as const;
+
+/** "11:58" later today, "Fri 11:58" on another day: in the rig's time zone, on the person's clock. */
+function clockWords(ms: number, atMs: number, time: TimeSettings): string {
+  return dayKey(ms, time.timeZone) === dayKey(atMs, time.timeZone) ? formatTime(ms, time) : formatDayTime(ms, time);
+}
+
+/** The verdict's headline: "Makes it till the sun is strong enough, about 11:58". */
+export function verdictHeadline(now: NowResult, atMs: number, time: TimeSettings): string {
+  const td = now.bank.tillDawn;
+  if (td.chargingNow) return "Charging now";
+  if (td.nextWindowMs === null) return td.reaches ? `Stays above the floor for ${now.projection.horizonH} h` : `No charge in ${now.projection.horizonH} h`;
+  const window = `${windowNames[td.nextWindowKind ?? "sun"]}, about ${clockWords(td.nextWindowMs, atMs, time)}`;
+  return td.reaches ? `Makes it till ${window}` : `Falls short before ${window}`;
+}
 const sourceWords = { entered: "entered by hand", resting_voltage: "estimated from a resting voltage", logbook: "from the logbook" } as const;
 
 export function NowScreen(props: NowScreenProps) {
@@ -58,13 +108,14 @@ export function NowScreen(props: NowScreenProps) {
   }, []);
   const atMs = pinned ?? clock;
 
+  const knowledge = useMemo(() => socKnowledge(model, state, props.latestReading, atMs), [model, state, props.latestReading, atMs]);
   const result = useMemo((): { ok: true; now: NowResult } | { ok: false; message: string } => {
     try {
-      return { ok: true, now: computeNow({ model, state, atMs }) };
+      return { ok: true, now: computeNow({ model, state: planningState(state, knowledge, atMs), atMs }) };
     } catch (error) {
       return { ok: false, message: error instanceof Error ? error.message : String(error) };
     }
-  }, [model, state, atMs]);
+  }, [model, state, knowledge, atMs]);
 
   if (!result.ok) {
     return (
@@ -78,8 +129,8 @@ export function NowScreen(props: NowScreenProps) {
     );
   }
   return (
-    <ExplainProvider>
-      <NowBody {...props} now={result.now} atMs={atMs} pinned={pinned} setPinned={setPinned} canWrite={canWrite} />
+    <ExplainProvider time={{ timeZone: model.timeZone, clock: props.clock ?? "24h" }}>
+      <NowBody {...props} knowledge={knowledge} now={result.now} atMs={atMs} pinned={pinned} setPinned={setPinned} canWrite={canWrite} />
     </ExplainProvider>
   );
 }
@@ -101,8 +152,16 @@ function NowBody({
   pinned,
   setPinned,
   canWrite,
-}: NowScreenProps & { now: NowResult; atMs: number; pinned: number | null; setPinned: (ms: number | null) => void; canWrite: boolean }) {
+  knowledge,
+  clock = "24h",
+}: NowScreenProps & { knowledge: SocKnowledge; now: NowResult; atMs: number; pinned: number | null; setPinned: (ms: number | null) => void; canWrite: boolean }) {
   const [socOpen, setSocOpen] = useState(false);
+  const [socTab, setSocTab] = useState<SocEntryTab>("soc");
+  const openSoc = (tab: SocEntryTab) => {
+    setSocTab(tab);
+    setSocOpen(true);
+  };
+  const unknown = knowledge.kind === "unknown";
   const [socBankId, setSocBankId] = useState<string>(() => (model.banks.find((b) => b.role === "house") ?? model.banks[0]!).id);
   const [hydrated, setHydrated] = useState(false);
   useEffect(() => setHydrated(true), []);
@@ -110,6 +169,7 @@ function NowBody({
   const td = bank.tillDawn;
   const horizonH = now.projection.horizonH;
   const tz = model.timeZone;
+  const time = useMemo((): TimeSettings => ({ timeZone: tz, clock }), [tz, clock]);
 
   // Toggle latency: marked when the new runway is in the DOM (bench: scripts/bench-now.ts).
   useLayoutEffect(() => {
@@ -119,7 +179,7 @@ function NowBody({
   const series: ChartSeries | null = useMemo(() => (hydrated ? chartSeries(model, now) : null), [hydrated, model, now]);
   const costs = useLoadCosts(model, state, atMs, now, hydrated);
 
-  const soc = state.soc;
+  const soc = knowledge.kind === "carried" ? knowledge.entry : knowledge.kind === "unknown" ? knowledge.stale : state.soc;
   const socAgeMs = soc ? atMs - Date.parse(soc.takenAt) : null;
   const stale = socAgeMs !== null && socAgeMs > STALE_AFTER_MS;
   const place = placeOf(model, state);
@@ -132,18 +192,21 @@ function NowBody({
 
   const explainRunway = (): Explanation => ({
     title: "Runway",
-    value: formatDuration(bank.runwayH, horizonH),
-    plain:
-      bank.runwayH === null
+    value: unknown ? `at most ${formatDuration(bank.runwayH, horizonH)}` : formatDuration(bank.runwayH, horizonH),
+    plain: unknown
+      ? `The state of charge is not known, so this is only the upper end of a range: starting from a full bank (100 %) the ${now.bankModel.name.toLowerCase()} ${bank.runwayH === null ? `stays above its usable floor (${formatPct(bank.stopSocPct)}) for the whole ${horizonH} hours the projection looks ahead` : `reaches its usable floor of ${formatPct(bank.stopSocPct)} after ${formatDuration(bank.runwayH)}`}. A bank that is not full lasts less, down to nothing at the floor. Enter the SoC for a true runway.`
+      : bank.runwayH === null
         ? `At this plan the ${now.bankModel.name.toLowerCase()} stays above its usable floor (${formatPct(bank.stopSocPct)}) for the whole ${horizonH} hours the projection looks ahead.`
         : `Starting from ${formatPct(bank.startSocPct)} the ${now.bankModel.name.toLowerCase()} reaches its usable floor of ${formatPct(bank.stopSocPct)} after ${formatDuration(bank.runwayH)}, counting the loads at their hours in "${mode.name}", standby draws and the sun at ${place.label}, step by step every ${now.projection.stepMin} minutes.`,
     how: bank.how,
     source: "Tilldawn's projection; Peukert's law for discharge; clear-sky sun scaled by the weather choice.",
   });
   const explainVerdict = (): Explanation => ({
-    title: "Till dawn",
-    value: td.reaches ? "Makes it" : "Falls short",
-    plain: td.nextWindowMs === null ? td.summary : `${verdictSentence(now, tz)} ${td.summary}`,
+    title: "Till the next charge",
+    value: unknown ? (td.reaches ? "Not known" : "Falls short") : td.reaches ? "Makes it" : "Falls short",
+    plain: unknown
+      ? `${unknownVerdictSentence(now, atMs, time)} The state of charge is not known; these figures start from a full bank, the best case.`
+      : verdictSentence(now, atMs, time),
     how: td.how,
   });
   const explainNet = (): Explanation => ({
@@ -159,11 +222,15 @@ function NowBody({
   });
   const explainSoc = (): Explanation => ({
     title: "State of charge",
-    value: formatPct(bank.startSocPct),
-    plain: !soc
-      ? "Nobody has entered the state of charge yet, so the projection assumes a full bank. Enter it for a true runway."
-      : `${formatPct(bank.startSocPct)} ${sourceWords[soc.source]}, read ${formatAgo(Date.parse(soc.takenAt), atMs)} (${formatClock(Date.parse(soc.takenAt), tz)}).${soc.restingV !== undefined ? ` Resting voltage ${soc.restingV} V.` : ""}`,
-    ...(now.socEstimate ? { how: now.socEstimate.how } : {}),
+    value: unknown ? "unknown" : formatPct(bank.startSocPct),
+    plain: unknown
+      ? soc
+        ? `The last state of charge (${formatPct(soc.socPct)}, ${sourceWords[soc.source]}) was read ${formatAgo(Date.parse(soc.takenAt), atMs)}, too long ago to plan from, and the logbook has no newer reading with a SoC. The runway is shown only as an upper bound until it is entered again.`
+        : "Nobody has entered the state of charge yet. The runway is shown only as an upper bound (from a full bank) until it is entered."
+      : !soc
+      ? "Nobody has entered the state of charge yet."
+      : `${formatPct(bank.startSocPct)} ${sourceWords[soc.source]}, read ${formatAgo(Date.parse(soc.takenAt), atMs)} (${clockWords(Date.parse(soc.takenAt), atMs, time)}).${soc.restingV !== undefined ? ` Resting voltage ${soc.restingV}\u00a0V. ${restingAdvice(now.bankModel.chemistry)}` : ""}`,
+    ...(now.socEstimate ? { how: { ...now.socEstimate.how, note: restingAdvice(now.bankModel.chemistry) } } : {}),
     inputs: [
       ["Usable floor", formatPct(bank.stopSocPct)],
       ["SoC at the low-voltage cutoff", formatPct(now.cutoffSocPct)],
@@ -197,41 +264,83 @@ function NowBody({
             {now.bankModel.name}
           </h2>
           <Explainable explanation={explainSoc} className="text-3xl font-bold">
-            <span data-testid="soc">{formatPct(bank.startSocPct)}</span>
+            <span data-testid="soc">{unknown ? "unknown" : formatPct(bank.startSocPct)}</span>
           </Explainable>
         </div>
-        <HorizonBand socPct={bank.startSocPct} stopSocPct={bank.stopSocPct} lowConfidence={bank.startSocConfidence === "low"} />
+        <HorizonBand socPct={unknown ? null : bank.startSocPct} stopSocPct={bank.stopSocPct} lowConfidence={bank.startSocConfidence === "low"} />
         <div className="flex flex-wrap items-center justify-between gap-2">
-          <p className={cn("text-sm", stale || !soc ? "font-bold text-ember-300" : "text-night-200")}>
+          <p className={cn("text-sm", unknown ? "font-bold text-ember-300" : "text-night-200")}>
             {!soc
-              ? "No SoC entered yet: a full bank is assumed."
-              : `${sourceWords[soc.source]}, ${formatAgo(Date.parse(soc.takenAt), atMs)}${stale ? " — stale, the bank has been used since" : ""}${now.socEstimate?.flatCurve ? " — low confidence (flat LiFePO4 curve)" : ""}`}
+              ? "No SoC entered yet."
+              : unknown
+                ? `Last SoC ${formatAgo(Date.parse(soc.takenAt), atMs)}: too old to plan from.`
+                : `${knowledge.kind === "carried" ? "latest logbook reading" : sourceWords[soc.source]}, ${formatAgo(Date.parse(soc.takenAt), atMs)}${stale ? " — stale, the bank has been used since" : ""}${now.socEstimate?.flatCurve ? " — low confidence (flat LiFePO4 curve)" : ""}`}
           </p>
           {canWrite ? (
-            <Button variant={!soc || stale ? "primary" : "quiet"} onClick={() => setSocOpen(true)}>
+            <Button variant={!unknown && stale ? "primary" : "quiet"} onClick={() => openSoc("soc")}>
               Update SoC
             </Button>
           ) : null}
         </div>
 
+        {unknown ? (
+          <div role="group" aria-labelledby="soc-first-heading" data-testid="soc-first" className="space-y-2 rounded-2xl border-2 border-dashed border-dawn-500 p-3">
+            <h3 id="soc-first-heading" className="text-xl font-bold">
+              How full is the bank?
+            </h3>
+            <p className="text-night-100">
+              {soc ? "The last state of charge is too old and the logbook has nothing newer" : "The state of charge is not known yet"}, so the runway below is only the most it could be.{" "}
+              {canWrite ? "Give it first, one of three ways:" : "The owner or crew can enter it."}
+            </p>
+            {canWrite ? (
+              <div className="grid gap-2 sm:grid-cols-3">
+                <Button variant="primary" onClick={() => openSoc("soc")}>
+                  Enter the SoC
+                </Button>
+                <Button variant="quiet" onClick={() => openSoc("voltage")}>
+                  From a resting voltage
+                </Button>
+                <Button variant="quiet" onClick={() => openSoc("logbook")}>
+                  From the latest reading
+                </Button>
+              </div>
+            ) : null}
+          </div>
+        ) : null}
+
         <div className="border-t border-night-700 pt-3">
-          <p className="text-sm font-bold uppercase tracking-wider text-night-300">Runway</p>
+          <p className="text-sm font-bold uppercase tracking-wider text-night-300">{unknown ? "Runway, at most" : "Runway"}</p>
           <p aria-live="polite" aria-atomic="true" className="text-5xl font-bold leading-tight">
             <Explainable explanation={explainRunway}>
-              <span data-testid="runway">{formatDuration(bank.runwayH, horizonH)}</span>
+              <span data-testid="runway">{unknown ? `0 to ${formatDuration(bank.runwayH, horizonH)}` : formatDuration(bank.runwayH, horizonH)}</span>
             </Explainable>
           </p>
-          <p className="text-night-200">to the usable floor ({formatPct(bank.stopSocPct)}) at the present plan</p>
+          <p className="text-night-200">
+            {unknown
+              ? `to the usable floor (${formatPct(bank.stopSocPct)}) at the present plan; the upper end only if the bank is full`
+              : `to the usable floor (${formatPct(bank.stopSocPct)}) at the present plan`}
+          </p>
         </div>
 
-        <div className={cn("rounded-2xl border p-3", td.reaches ? "border-leaf-400" : "border-ember-500")}>
+        {unknown ? (
+          <div data-testid="verdict-box" data-tone={td.reaches ? "wait" : "bad"} className={cn("rounded-2xl border-2 border-dashed p-3", td.reaches ? "border-night-500" : "border-ember-500")}>
+            <Explainable explanation={explainVerdict} className="block w-full no-underline">
+              <span className={cn("block text-xl font-bold", td.reaches ? "text-night-100" : "text-ember-500")} data-testid="verdict">
+                {td.reaches ? "Till the next charge: not known until the SoC is given" : `${verdictHeadline(now, atMs, time)}, even from a full bank`}
+              </span>
+              <span className="block text-night-100">{unknownVerdictSentence(now, atMs, time)}</span>
+            </Explainable>
+          </div>
+        ) : (
+        <div data-testid="verdict-box" data-tone={td.reaches ? "good" : "bad"} className={cn("rounded-2xl border p-3", td.reaches ? "border-leaf-400" : "border-ember-500")}>
           <Explainable explanation={explainVerdict} className="block w-full no-underline">
             <span className={cn("block text-xl font-bold", td.reaches ? "text-leaf-400" : "text-ember-500")} data-testid="verdict">
-              {td.reaches ? "Makes it till dawn" : "Falls short of the next charge"}
+              {verdictHeadline(now, atMs, time)}
             </span>
-            <span className="block text-night-100">{verdictSentence(now, tz)}</span>
+            <span className="block text-night-100">{verdictSentence(now, atMs, time)}</span>
           </Explainable>
         </div>
+        )}
 
         <dl className="grid grid-cols-2 gap-3 md:grid-cols-3">
           <div>
@@ -248,7 +357,7 @@ function NowBody({
             <dt className="text-sm text-night-300">Next charge</dt>
             <dd className="text-lg font-bold">
               <Explainable explanation={explainVerdict}>
-                {td.chargingNow ? "now" : td.nextWindowMs === null ? `none in ${horizonH} h` : `${formatClock(td.nextWindowMs, tz)}, ${windowWords[td.nextWindowKind ?? "sun"]}`}
+                {td.chargingNow ? "now" : td.nextWindowMs === null ? `none in ${horizonH} h` : `${clockWords(td.nextWindowMs, atMs, time)}, ${windowWords[td.nextWindowKind ?? "sun"]}`}
               </Explainable>
             </dd>
           </div>
@@ -258,22 +367,24 @@ function NowBody({
               <Explainable
                 explanation={{
                   title: "SoC at sunrise",
-                  value: bank.socAtNextSunrisePct === null ? "—" : formatPct(bank.socAtNextSunrisePct),
+                  value: unknown || bank.socAtNextSunrisePct === null ? "—" : formatPct(bank.socAtNextSunrisePct),
                   plain:
-                    now.projection.nextSunriseMs === null
+                    unknown
+                      ? "Not known until the state of charge is given."
+                      : now.projection.nextSunriseMs === null
                       ? "The sun does not rise within the projection at this place."
-                      : `The projection's state of charge at the next sunrise, ${formatClock(now.projection.nextSunriseMs, tz)} at ${place.label}.`,
+                      : `The projection's state of charge at the next sunrise, ${clockWords(now.projection.nextSunriseMs, atMs, time)} at ${place.label}.`,
                   how: bank.how,
                 }}
               >
-                {bank.socAtNextSunrisePct === null ? "—" : formatPct(bank.socAtNextSunrisePct)}
+                {unknown || bank.socAtNextSunrisePct === null ? "—" : formatPct(bank.socAtNextSunrisePct)}
               </Explainable>
             </dd>
           </div>
         </dl>
       </section>
 
-      {hydrated ? <DawnPlanCard model={model} now={now} canWrite={canWrite} onChange={change} /> : null}
+      {hydrated && !unknown ? <DawnPlanCard model={model} now={now} canWrite={canWrite} onChange={change} /> : null}
 
       <ModesBar
         model={model}
@@ -336,7 +447,8 @@ function NowBody({
             </fieldset>
           ) : null}
           <SocEntryForm
-            key={socBankId}
+            key={`${socBankId}-${socTab}`}
+            initialTab={socTab}
             bank={model.banks.find((b) => b.id === socBankId) ?? now.bankModel}
             timeZone={tz}
             nowMs={Date.now()}
@@ -354,7 +466,7 @@ function NowBody({
   );
 }
 
-function verdictSentence(now: NowResult, tz: string): string {
+function verdictSentence(now: NowResult, atMs: number, time: TimeSettings): string {
   const td = now.bank.tillDawn;
   if (td.chargingNow) return "Charging now: sources give more than the loads draw.";
   if (td.nextWindowMs === null) {
@@ -362,14 +474,26 @@ function verdictSentence(now: NowResult, tz: string): string {
       ? `No charge expected in ${now.projection.horizonH} h, and the bank stays above its floor.`
       : `No charge expected in ${now.projection.horizonH} h; the floor comes in ${formatDuration(now.bank.runwayH)}.`;
   }
-  const when = formatClock(td.nextWindowMs, tz);
-  const what = windowWords[td.nextWindowKind ?? "sun"];
+  const when = clockWords(td.nextWindowMs, atMs, time);
+  const what = windowNames[td.nextWindowKind ?? "sun"];
   if (td.reaches) {
     const spare = td.marginSocPct === null ? "" : ` with ${formatPct(td.marginSocPct)} above the floor`;
     const margin = td.marginH === null ? "" : ` and ${formatDuration(td.marginH)} to spare`;
-    return `Reaches ${what} at ${when}${spare}${margin}.`;
+    return `At about ${when}, when ${what}, the bank is still${spare || " above the floor"}${margin}.`;
   }
-  return `Reaches the floor ${formatDuration(Math.abs(td.marginH ?? 0))} before ${what} at ${when}.`;
+  return `The bank reaches its floor ${formatDuration(Math.abs(td.marginH ?? 0))} before ${what}, about ${when}.`;
+}
+
+/** With no SoC known the projection starts from a full bank: only "falls short" is a fact then. */
+function unknownVerdictSentence(now: NowResult, atMs: number, time: TimeSettings): string {
+  const td = now.bank.tillDawn;
+  if (td.chargingNow) return "Charging now: sources give more than the loads draw.";
+  if (td.nextWindowMs === null) return `No charge expected in ${now.projection.horizonH} h.`;
+  const when = clockWords(td.nextWindowMs, atMs, time);
+  const what = windowNames[td.nextWindowKind ?? "sun"];
+  return td.reaches
+    ? `A full bank would last till ${what}, about ${when}; a less full one may not.`
+    : `Even a full bank reaches the floor ${formatDuration(Math.abs(td.marginH ?? 0))} before ${what}, about ${when}.`;
 }
 
 function SyncBadge({ status, role }: { status: "idle" | "saving" | "offline" | "error"; role: Role }) {

@@ -1,4 +1,5 @@
 import { useId, useState } from "react";
+import { restingAdvice } from "./explain";
 import type { Bank } from "~/engine/model";
 import { socFromRestingVoltage } from "~/engine/battery";
 import { utcOffsetMinutes } from "~/engine/solar";
@@ -8,6 +9,7 @@ import type { LatestReading, SocEntry } from "~/schemas/rig-state";
 import { formatAgo, formatPct, fromLocalInput, toLocalInput } from "./format";
 
 type Tab = "soc" | "voltage" | "logbook";
+export type SocEntryTab = Tab;
 
 const confidenceWords = { high: "high confidence", medium: "medium confidence", low: "low confidence" } as const;
 
@@ -19,6 +21,7 @@ export function SocEntryForm({
   latestReading,
   onSave,
   onCancel,
+  initialTab = "soc",
 }: {
   bank: Bank;
   timeZone: string;
@@ -26,8 +29,10 @@ export function SocEntryForm({
   latestReading: LatestReading | null;
   onSave: (soc: SocEntry) => void;
   onCancel: () => void;
+  /** Which way of giving the SoC opens first. */
+  initialTab?: SocEntryTab;
 }) {
-  const [tab, setTab] = useState<Tab>("soc");
+  const [tab, setTab] = useState<Tab>(initialTab);
   const [socText, setSocText] = useState("");
   const [voltText, setVoltText] = useState("");
   const [takenText, setTakenText] = useState(() => toLocalInput(nowMs, timeZone));
@@ -133,7 +138,7 @@ export function SocEntryForm({
             placeholder="e.g. 13.20"
             className="tabular min-h-12 w-full rounded-xl border border-night-600 bg-night-950 px-3 text-2xl"
           />
-          <p className="text-sm text-night-300">Read with no charge and no load for a while (lead-acid: about 6 hours).</p>
+          <p className="text-sm text-night-300" data-testid="resting-advice">{restingAdvice(bank.chemistry)}</p>
           {estimate ? (
             <div aria-live="polite" className={cn("rounded-xl border p-3", estimate.confidence === "low" ? "border-ember-500" : "border-night-600")}>
               <p className="tabular text-lg font-bold">
