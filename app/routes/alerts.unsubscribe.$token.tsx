@@ -4,9 +4,18 @@ import { Button, Card } from "~/components/ui/form";
 import { getDb } from "~/db/db.server";
 import { findByUnsubscribeToken, unsubscribeEmailByToken } from "~/repos/alerts.server";
 
+const NOT_VALID = "This unsubscribe link is not valid (any more).";
+
+/** A token as we make them (24 random bytes, base64url); anything else is not worth a query. */
+function tokenOf(params: { token?: string }): string {
+  const token = String(params.token ?? "");
+  if (!/^[A-Za-z0-9_-]{32}$/.test(token)) throw data({ message: NOT_VALID }, { status: 404 });
+  return token;
+}
+
 /** GET /alerts/unsubscribe/:token — the link in every alert e-mail: a button that stops them. */
 export async function loader({ params }: Route.LoaderArgs) {
-  const row = await findByUnsubscribeToken(getDb(), String(params.token));
+  const row = await findByUnsubscribeToken(getDb(), tokenOf(params));
   if (!row) throw data({ message: "This unsubscribe link is not valid (any more)." }, { status: 404 });
   return { emailOn: row.email };
 }
@@ -17,7 +26,7 @@ export async function loader({ params }: Route.LoaderArgs) {
  * can do is turn e-mail alerts off).
  */
 export async function action({ params }: Route.ActionArgs) {
-  const done = await unsubscribeEmailByToken(getDb(), String(params.token));
+  const done = await unsubscribeEmailByToken(getDb(), tokenOf(params));
   if (!done) throw data({ message: "This unsubscribe link is not valid (any more)." }, { status: 404 });
   return { done: true };
 }

@@ -214,6 +214,10 @@ describe("push alerts", () => {
     const page = await callRoute(unsubscribeRoute.loader, { path: `/alerts/unsubscribe/${token}`, params: { token } });
     expect((page.body as { emailOn: boolean }).emailOn).toBe(false);
     expect((await callRoute(unsubscribeRoute.loader, { path: "/alerts/unsubscribe/nope", params: { token: "nope" } })).status).toBe(404);
+    // A NUL in the token (found by the fuzz suite as a 500): refused as not found before any query.
+    const nul = "a\u0000b".padEnd(32, "x");
+    expect((await callRoute(unsubscribeRoute.loader, { path: "/alerts/unsubscribe/a%00b", params: { token: nul } })).status).toBe(404);
+    expect((await callRoute(unsubscribeRoute.action, { path: "/alerts/unsubscribe/a%00b", form: { "List-Unsubscribe": "One-Click" }, origin: null, params: { token: nul } })).status).toBe(404);
   });
 
   test("the schedule's sweep catches a runway that ran short with no new reading", async () => {
