@@ -14,10 +14,16 @@ import type { RigModel } from "~/engine/model";
 
 const juniper = setUpJuniper();
 
-/** A new rig with Juniper's model, owned by Ada; optionally with a SoC entered `ageH` hours ago. */
+/**
+ * This file's own owner (not the demo Ada: the other browser tests expect her to have one rig).
+ */
+const OWNER = "ada-now-screen@juniper.example";
+
+/** A new rig with Juniper's model, owned by this file's owner; optionally with a SoC entered `ageH` hours ago. */
 async function copyOfJuniper(name: string, soc?: { pct: number; ageH: number }, ownerId?: string): Promise<string> {
   const { db } = juniper;
-  const [ada] = await db.select().from(users).where(eq(users.email, "ada@juniper.example"));
+  await db.insert(users).values({ email: OWNER, name: "Ada" }).onConflictDoNothing();
+  const [ada] = await db.select().from(users).where(eq(users.email, OWNER));
   const asBuilt = await getAsBuilt(db, juniper.rigId);
   const { rig } = await createRig(db, { name, ownerId: ownerId ?? ada!.id, document: asBuilt!.document as RigModel });
   if (soc) {
@@ -33,7 +39,7 @@ async function copyOfJuniper(name: string, soc?: { pct: number; ageH: number }, 
 
 async function openNow(rigId: string): Promise<Page> {
   const context = await phoneContext(juniper.browser);
-  await signIn(context, "ada@juniper.example");
+  await signIn(context, OWNER);
   const page = await context.newPage();
   const res = await page.goto(`${baseUrl()}/rigs/${rigId}`);
   expect(res?.status()).toBe(200);
@@ -169,7 +175,7 @@ describe("Now screen's new states, checked with axe and in night mode", () => {
     const rigId = await copyOfJuniper(`Juniper axe ${crypto.randomUUID().slice(0, 8)}`);
     for (const mode of ["day", "night"] as const) {
       const context = await phoneContext(juniper.browser);
-      await signIn(context, "ada@juniper.example");
+      await signIn(context, OWNER);
       await context.addCookies([{ name: "tilldawn_night", value: mode === "night" ? "1" : "0", url: baseUrl() }]);
       const page = await context.newPage();
       await page.goto(`${baseUrl()}/rigs/${rigId}`, { waitUntil: "networkidle" });
