@@ -1,72 +1,18 @@
 // SoC entries for every bank through POST /api/rigs/:rigId/state (real PostgreSQL).
 import { afterAll, describe, expect, test } from "vitest";
 import { openTestDb, testDatabaseUrl } from "./db";
+import type { Call } from "./juniper-people";
 
 process.env.DATABASE_URL ??= testDatabaseUrl;
 
 const { db, pool } = openTestDb();
 afterAll(() => pool.end());
 
-const { rigMembers, users } = await import("~/db/schema");
-const { createSession } = await import("~/auth/session.server");
-const { createRig } = await import("~/repos/rigs.server");
 const stateRoute = await import("~/routes/api.rigs.$rigId.state");
 const { juniperModel } = await import("../fixtures/juniper");
 
-const origin = "http://127.0.0.1:3000";
-
-async function juniper() {
-  const tag = crypto.randomUUID().slice(0, 8);
-  const people = await db
-    .insert(users)
-    .values([
-      { email: `ada-${tag}@juniper.example`, name: "Ada" },
-      { email: `sam-${tag}@juniper.example`, name: "Sam" },
-      { email: `noor-${tag}@juniper.example`, name: "Noor" },
-      { email: `stranger-${tag}@elsewhere.example`, name: "Stranger" },
-    ])
-    .returning();
-  const [ada, sam, noor, stranger] = people as [(typeof people)[number], (typeof people)[number], (typeof people)[number], (typeof people)[number]];
-  const { rig } = await createRig(db, { name: `Juniper ${tag}`, ownerId: ada.id, document: juniperModel });
-  await db.insert(rigMembers).values([
-    { rigId: rig.id, userId: sam.id, role: "crew" },
-    { rigId: rig.id, userId: noor.id, role: "guest" },
-  ]);
-  const cookie = async (userId: string) => (await createSession(db, userId)).setCookie.split(";")[0]!;
-  return {
-    rig,
-    ada: { ...ada, cookie: await cookie(ada.id) },
-    sam: { ...sam, cookie: await cookie(sam.id) },
-    noor: { ...noor, cookie: await cookie(noor.id) },
-    stranger: { ...stranger, cookie: await cookie(stranger.id) },
-  };
-}
-
-type Call = { cookie?: string; body?: unknown; raw?: string; headers?: Record<string, string> };
-
-function request(path: string, method: string, call: Call = {}) {
-  const headers: Record<string, string> = { ...(call.cookie ? { cookie: call.cookie } : {}), ...call.headers };
-  if (method !== "GET") {
-    headers.origin ??= origin;
-    headers["sec-fetch-site"] ??= "same-origin";
-    headers["content-type"] ??= "application/json";
-  }
-  return new Request(`${origin}${path}`, {
-    method,
-    headers,
-    ...(method !== "GET" ? { body: call.raw ?? JSON.stringify(call.body ?? {}) } : {}),
-  });
-}
-
-/** Runs a loader or action, turning a thrown Response into the answer. */
-async function run(fn: (args: never) => Promise<unknown> | unknown, req: Request, rigId: string): Promise<Response> {
-  try {
-    return (await fn({ request: req, params: { rigId }, context: {} } as never)) as Response;
-  } catch (thrown) {
-    if (thrown instanceof Response) return thrown;
-    throw thrown;
-  }
-}
+const { juniperWithPeople, request, run } = await import("./juniper-people");
+const juniper = () => juniperWithPeople(db);
 
 const getState = (rigId: string, cookie: string) => run(stateRoute.loader, request(`/api/rigs/${rigId}/state`, "GET", { cookie }), rigId);
 const postState = (rigId: string, call: Call) => run(stateRoute.action, request(`/api/rigs/${rigId}/state`, "POST", call), rigId);
