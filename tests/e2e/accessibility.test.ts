@@ -46,6 +46,8 @@ const pages = () => {
     ["budget", `/rigs/${r}/budget`],
     ["model", `/rigs/${r}/model`],
     ["people", `/rigs/${r}/members`],
+    ["alerts", `/rigs/${r}/alerts`],
+    ["photos", `/rigs/${r}/photos`],
     ["not-found", "/no/such/page"],
   ] as const;
 };

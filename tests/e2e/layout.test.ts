@@ -33,7 +33,7 @@ describe("Phone layout", () => {
     const context = await phoneContext(browser);
     await signIn(context, "sam@juniper.example");
     const page = await context.newPage();
-    for (const path of [`/rigs/${rigId}`, `/rigs/${rigId}/log`, `/rigs/${rigId}/budget`, `/rigs/${rigId}/model`, `/rigs/${rigId}/members`, "/rigs", "/account"]) {
+    for (const path of [`/rigs/${rigId}`, `/rigs/${rigId}/log`, `/rigs/${rigId}/budget`, `/rigs/${rigId}/model`, `/rigs/${rigId}/members`, `/rigs/${rigId}/alerts`, `/rigs/${rigId}/photos`, "/rigs", "/account"]) {
       await page.goto(`${baseUrl()}${path}`, { waitUntil: "networkidle" });
       if (path.endsWith("/log")) await page.locator("[data-reading-id]:visible").first().waitFor();
       const widths = await page.evaluate(() => ({ inner: window.innerWidth, scroll: document.documentElement.scrollWidth }));
